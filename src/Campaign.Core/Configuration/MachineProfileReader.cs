@@ -1,0 +1,85 @@
+using System.Text.RegularExpressions;
+using Campaign.Core.Domain;
+using Campaign.Core.Text;
+
+namespace Campaign.Core.Configuration;
+
+/// <summary>Reads and validates a machine profile from TOML text.</summary>
+public static partial class MachineProfileReader
+{
+    /// <summary>Fields a profile may have, in the order the docs list them.</summary>
+    public static readonly string[] Fields =
+    {
+        "name", "description", "batch_system", "cores_per_node", "memory_per_node_gb", "wall_limit_hours",
+        "charge_whole_nodes", "charge_factor", "relative_speed", "max_jobs_queued", "max_jobs_running",
+        "queue_wait_median_hours", "queue_wait_p90_hours",
+    };
+
+    /// <summary>Allowed machine names: what the error message says.</summary>
+    public const string NameRule = "a name of 1 to 32 characters: lower-case letters, digits, '-' or '_', starting with a letter";
+
+    /// <summary>Parses and validates; throws <see cref="InvalidInputException"/> listing every located problem.</summary>
+    public static MachineProfile Read(string text, string source)
+    {
+        TomlTable root;
+        try
+        {
+            root = TomlDocument.Parse(text, source);
+        }
+        catch (InvalidDataException e)
+        {
+            throw new InvalidInputException(new[] { e.Message });
+        }
+
+        var problems = new List<string>();
+        var fields = new TomlFields(root, source, problems);
+        fields.RejectUnknown(Fields);
+        var name = fields.String("name", required: true, NameRule);
+        if (name is not null && !NamePattern().IsMatch(name))
+        {
+            fields.Problem("name", NameRule);
+        }
+
+        var description = fields.String("description", required: false) ?? "";
+        var batch = fields.Choice("batch_system", true, "local", "slurm", "pbs");
+        var coresPerNode = fields.Integer("cores_per_node", true, 1, 100_000);
+        var memory = fields.PositiveNumber("memory_per_node_gb", true, 1_000_000, "GB");
+        var wall = fields.PositiveNumber("wall_limit_hours", true, 8760, "hours");
+        var wholeNodes = fields.Boolean("charge_whole_nodes", true);
+        var chargeFactor = fields.PositiveNumber("charge_factor", false, 1000) ?? 1.0;
+        var speed = fields.PositiveNumber("relative_speed", false, 1000) ?? 1.0;
+        var queued = fields.Integer("max_jobs_queued", false, 1, 1_000_000) ?? 100;
+        var running = fields.Integer("max_jobs_running", false, 1, 1_000_000) ?? queued;
+        var waitMedian = fields.Number("queue_wait_median_hours", false, 0, 8760, "hours") ?? 2.0;
+        var waitP90 = fields.Number("queue_wait_p90_hours", false, 0, 8760, "hours") ?? Math.Max(waitMedian * 4, waitMedian);
+        if (running > queued)
+        {
+            fields.Problem("max_jobs_running", $"at most max_jobs_queued = {queued}");
+        }
+
+        if (waitP90 < waitMedian)
+        {
+            fields.Problem("queue_wait_p90_hours", $"at least queue_wait_median_hours = {FieldProblem.Show(waitMedian)}");
+        }
+
+        if (problems.Count > 0)
+        {
+            throw new InvalidInputException(problems);
+        }
+
+        var kind = batch switch
+        {
+            "slurm" => BatchSystemKind.Slurm,
+            "pbs" => BatchSystemKind.Pbs,
+            _ => BatchSystemKind.Local,
+        };
+        return new MachineProfile(name!, description, kind, (int)coresPerNode!.Value, memory!.Value, wall!.Value, wholeNodes!.Value,
+            chargeFactor, speed, (int)queued, (int)running, waitMedian, waitP90);
+    }
+
+    /// <summary>True when <paramref name="name"/> is a valid machine name.</summary>
+    public static bool IsValidName(string name) => NamePattern().IsMatch(name);
+
+    [GeneratedRegex("^[a-z][a-z0-9_-]{0,31}$")]
+    private static partial Regex NamePattern();
+}

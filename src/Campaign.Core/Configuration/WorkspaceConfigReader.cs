@@ -1,0 +1,207 @@
+using Campaign.Core.Domain;
+using Campaign.Core.Physics;
+using Campaign.Core.Text;
+
+namespace Campaign.Core.Configuration;
+
+/// <summary>Reads and validates a workspace config (campaign.toml) from TOML text.</summary>
+public static class WorkspaceConfigReader
+{
+    /// <summary>
+    /// Parses and validates against the machine profiles the workspace knows; throws
+    /// <see cref="InvalidInputException"/> listing every located problem.
+    /// </summary>
+    public static WorkspaceConfig Read(string text, string source, IReadOnlyCollection<string> knownMachines)
+    {
+        TomlTable root;
+        try
+        {
+            root = TomlDocument.Parse(text, source);
+        }
+        catch (InvalidDataException e)
+        {
+            throw new InvalidInputException(new[] { e.Message });
+        }
+
+        var problems = new List<string>();
+        var top = new TomlFields(root, source, problems);
+        top.RejectUnknown("campaign", "allocation", "defaults", "length");
+        var known = knownMachines.Count == 0 ? "(no machine profiles found)" : string.Join(", ", knownMachines.Order(StringComparer.Ordinal));
+
+        var campaign = top.SubTable("campaign", required: true);
+        string name = "";
+        var machines = new List<string>();
+        var defaultMachine = "";
+        if (campaign is not null)
+        {
+            var fields = new TomlFields(campaign, source, problems);
+            fields.RejectUnknown("name", "machines", "default_machine");
+            name = fields.String("name", true, "the campaign's name, a non-empty string") ?? "";
+            if (campaign.Contains("name") && string.IsNullOrWhiteSpace(name))
+            {
+                fields.Problem("name", "the campaign's name, a non-empty string");
+            }
+
+            machines = fields.StringList("machines", true)?.ToList() ?? new List<string>();
+            if (campaign.Contains("machines"))
+            {
+                if (machines.Count == 0)
+                {
+                    fields.Problem("machines", "at least one machine, one of the profiles: " + known);
+                }
+
+                foreach (var unknown in machines.Where(m => !knownMachines.Contains(m)))
+                {
+                    fields.Problem("machines", $"machine names with a profile; \"{unknown}\" has none (known: {known})");
+                }
+
+                if (machines.Distinct(StringComparer.Ordinal).Count() != machines.Count)
+                {
+                    fields.Problem("machines", "each machine listed once");
+                }
+            }
+
+            defaultMachine = fields.String("default_machine", false) ?? machines.FirstOrDefault() ?? "";
+            if (campaign.Contains("default_machine") && !machines.Contains(defaultMachine))
+            {
+                fields.Problem("default_machine", "one of campaign.machines: " + string.Join(", ", machines));
+            }
+        }
+
+        var allocations = new List<Allocation>();
+        foreach (var table in top.TableList("allocation"))
+        {
+            var allocation = ReadAllocation(table, source, problems, machines);
+            if (allocation is not null)
+            {
+                allocations.Add(allocation);
+            }
+        }
+
+        foreach (var group in allocations.GroupBy(a => a.Machine))
+        {
+            var ordered = group.OrderBy(a => a.Start).ToList();
+            for (var i = 1; i < ordered.Count; i++)
+            {
+                if (ordered[i].Start <= ordered[i - 1].End)
+                {
+                    problems.Add($"{source}: allocations for machine \"{group.Key}\" overlap ({ordered[i - 1].Start:yyyy-MM-dd} to {ordered[i - 1].End:yyyy-MM-dd} and {ordered[i].Start:yyyy-MM-dd} to {ordered[i].End:yyyy-MM-dd}): expected periods that do not overlap");
+                }
+            }
+        }
+
+        var defaults = new RunDefaults(new[] { 1, 2, 3 }, null);
+        var defaultsTable = top.SubTable("defaults", false);
+        if (defaultsTable is not null)
+        {
+            var fields = new TomlFields(defaultsTable, source, problems);
+            fields.RejectUnknown("levels", "cores");
+            var levels = fields.IntegerList("levels", false, 0, RunSpec.MaximumLevel);
+            if (levels is not null && (levels.Count == 0 || levels.Distinct().Count() != levels.Count))
+            {
+                fields.Problem("levels", "a non-empty array of distinct resolution levels");
+            }
+
+            var cores = fields.Integer("cores", false, 1, RunSpec.MaximumCores);
+            defaults = new RunDefaults(levels?.Select(l => (int)l).ToArray() ?? defaults.Levels, cores is null ? null : (int)cores.Value);
+        }
+
+        var length = ReadLength(top.SubTable("length", false), source, problems);
+        if (problems.Count > 0)
+        {
+            throw new InvalidInputException(problems);
+        }
+
+        return new WorkspaceConfig(name, machines, defaultMachine, allocations, defaults, length);
+    }
+
+    private static Allocation? ReadAllocation(TomlTable table, string source, List<string> problems, IReadOnlyList<string> machines)
+    {
+        var before = problems.Count;
+        var fields = new TomlFields(table, source, problems);
+        fields.RejectUnknown("machine", "amount", "unit", "start", "end", "window");
+        var machine = fields.String("machine", true, "one of campaign.machines");
+        if (machine is not null && !machines.Contains(machine))
+        {
+            fields.Problem("machine", "one of campaign.machines: " + string.Join(", ", machines));
+        }
+
+        var amount = fields.PositiveNumber("amount", true, 1e12);
+        var unit = fields.Choice("unit", true, "core-hours", "node-hours");
+        var start = fields.Date("start", true);
+        var end = fields.Date("end", true);
+        if (start is not null && end is not null && end <= start)
+        {
+            fields.Problem("end", $"a date after start = {start:yyyy-MM-dd}");
+        }
+
+        var windows = new List<AllocationWindow>();
+        foreach (var windowTable in fields.TableList("window"))
+        {
+            var w = new TomlFields(windowTable, source, problems);
+            w.RejectUnknown("start", "end", "amount");
+            var ws = w.Date("start", true);
+            var we = w.Date("end", true);
+            var wa = w.PositiveNumber("amount", true, 1e12);
+            if (ws is null || we is null || wa is null)
+            {
+                continue;
+            }
+
+            if (we < ws)
+            {
+                w.Problem("end", $"a date on or after start = {ws:yyyy-MM-dd}");
+            }
+            else if (start is not null && end is not null && (ws < start || we > end))
+            {
+                w.Problem("start", $"a window inside the allocation period {start:yyyy-MM-dd} to {end:yyyy-MM-dd}");
+            }
+            else if (windows.Count > 0 && ws <= windows[^1].End)
+            {
+                w.Problem("start", $"windows in date order that do not overlap; the previous window ends {windows[^1].End:yyyy-MM-dd}");
+            }
+
+            windows.Add(new AllocationWindow(ws.Value, we.Value, wa.Value));
+        }
+
+        if (amount is not null && windows.Sum(w => w.Amount) > amount.Value * (1 + 1e-12))
+        {
+            fields.Problem("amount", $"at least the sum of its windows, {FieldProblem.Show(windows.Sum(w => w.Amount))}");
+        }
+
+        if (problems.Count > before)
+        {
+            return null;
+        }
+
+        return new Allocation(machine!, amount!.Value, unit == "node-hours" ? AllocationUnit.NodeHours : AllocationUnit.CoreHours, start!.Value, end!.Value, windows);
+    }
+
+    private static LengthSettings ReadLength(TomlTable? table, string source, List<string> problems)
+    {
+        var settings = new LengthSettings();
+        if (table is null)
+        {
+            return settings;
+        }
+
+        var fields = new TomlFields(table, source, problems);
+        string[] keys = { "end_of_inspiral_x", "merger_allowance_m", "minimum_post_peak_m", "ringdown_efolds", "extraction_radius_m" };
+        fields.RejectUnknown(keys);
+        double Read(string key, double fallback) => fields.FiniteNumber(key) ?? fallback;
+        settings = new LengthSettings
+        {
+            EndOfInspiralX = Read(keys[0], settings.EndOfInspiralX),
+            MergerAllowance = Read(keys[1], settings.MergerAllowance),
+            MinimumPostPeak = Read(keys[2], settings.MinimumPostPeak),
+            RingdownEFolds = Read(keys[3], settings.RingdownEFolds),
+            ExtractionRadius = Read(keys[4], settings.ExtractionRadius),
+        };
+        foreach (var problem in settings.Validate())
+        {
+            fields.Problem(problem.Field, problem.Expected);
+        }
+
+        return settings;
+    }
+}
