@@ -1,0 +1,129 @@
+using System.CommandLine;
+using Campaign.Cli.Commands;
+using Campaign.Cli.Output;
+using Campaign.Core.Domain;
+using Campaign.Store.Schema;
+using Microsoft.Data.Sqlite;
+
+namespace Campaign.Cli;
+
+/// <summary>
+/// The composition root: builds the command tree, runs the chosen action, and turns failures into the
+/// documented exit codes (0 ok, 1 usage, 2 bad input, 3 runtime failure).
+/// </summary>
+public sealed class CampaignApp
+{
+    private readonly TextWriter _out;
+    private readonly TextWriter _err;
+    private readonly TimeProvider _time;
+    private readonly string _currentDirectory;
+
+    /// <summary>Option --dir: the workspace folder (every command).</summary>
+    internal static readonly Option<string> DirOption = new("--dir")
+    {
+        Description = "Workspace folder (default: the current folder)",
+        Recursive = true,
+        HelpName = "DIR",
+    };
+
+    /// <summary>Option --json: machine-readable output (every command).</summary>
+    internal static readonly Option<bool> JsonOption = new("--json")
+    {
+        Description = "Write one JSON document to standard output instead of tables",
+        Recursive = true,
+    };
+
+    /// <summary>Creates the app with its writers, clock and current folder (tests pass their own).</summary>
+    public CampaignApp(TextWriter output, TextWriter error, TimeProvider time, string currentDirectory)
+    {
+        _out = output;
+        _err = error;
+        _time = time;
+        _currentDirectory = currentDirectory;
+    }
+
+    /// <summary>Parses <paramref name="args"/>, runs the command and returns the exit code.</summary>
+    public int Run(string[] args)
+    {
+        var root = BuildCommands();
+        var parse = root.Parse(args);
+        return parse.Invoke(new InvocationConfiguration { Output = _out, Error = _err, EnableDefaultExceptionHandler = false });
+    }
+
+    /// <summary>The command tree.</summary>
+    internal RootCommand BuildCommands()
+    {
+        var root = new RootCommand(
+            "campaign: plan, choose and run binary-black-hole simulation campaigns on shared machines.\n" +
+            "Estimates are estimates; the allocating site's charging rules and policies rule.")
+        {
+            DirOption,
+            JsonOption,
+        };
+        root.Add(InitCommand.Build(this));
+        root.Add(CheckCommand.Build(this));
+        root.Add(LengthCommand.Build(this));
+        root.Add(MachinesCommand.Build(this));
+        root.Add(DemoCommand.Build(this));
+        return root;
+    }
+
+    /// <summary>Sets <paramref name="body"/> as the action of <paramref name="command"/>, with the error handling every command shares.</summary>
+    internal void Bind(Command command, Func<CommandContext, int> body)
+    {
+        command.SetAction(parse =>
+        {
+            var json = parse.GetValue(JsonOption);
+            var dir = Path.GetFullPath(parse.GetValue(DirOption) ?? ".", _currentDirectory);
+            var context = new CommandContext(parse, _out, _err, _time, dir, json);
+            try
+            {
+                return body(context);
+            }
+            catch (UsageException e)
+            {
+                return Fail(context, ExitCodes.Usage, "usage", new[] { e.Message });
+            }
+            catch (InvalidInputException e)
+            {
+                return Fail(context, ExitCodes.BadInput, "bad_input", e.Problems);
+            }
+            catch (Exception e) when (e is SchemaTooNewException or IOException or UnauthorizedAccessException or SqliteException or InvalidOperationException)
+            {
+                return Fail(context, ExitCodes.RuntimeFailure, "runtime_failure", new[] { e.Message });
+            }
+        });
+    }
+
+    /// <summary>Resolves a path typed by the user against the current folder.</summary>
+    internal string Resolve(string path) => Path.GetFullPath(path, _currentDirectory);
+
+    private static int Fail(CommandContext context, int code, string kind, IReadOnlyList<string> problems)
+    {
+        foreach (var problem in problems)
+        {
+            context.Err.WriteLine("campaign: error: " + problem);
+        }
+
+        if (code == ExitCodes.BadInput)
+        {
+            context.Err.WriteLine("campaign: nothing was changed.");
+        }
+
+        if (context.Json)
+        {
+            Json.Write(context.Out, new { Error = new { Kind = kind, ExitCode = code, Problems = problems } });
+        }
+
+        return code;
+    }
+}
+
+/// <summary>A command line that parses but does not make sense (for example two options that exclude each other).</summary>
+internal sealed class UsageException : Exception
+{
+    public UsageException(string message)
+        : base(message)
+    {
+    }
+}

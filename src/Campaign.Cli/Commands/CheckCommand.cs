@@ -1,0 +1,76 @@
+using System.CommandLine;
+using Campaign.Cli.Output;
+using Campaign.Store;
+using Dapper;
+
+namespace Campaign.Cli.Commands;
+
+/// <summary>campaign check: validates the workspace (config, profiles, database) and summarises it.</summary>
+internal static class CheckCommand
+{
+    public static Command Build(CampaignApp app)
+    {
+        var command = new Command("check", "Validate the workspace (config, machine profiles, database) and summarise it");
+        app.Bind(command, context =>
+        {
+            using var workspace = Workspace.Open(context.Workspace, context.Time);
+            var config = workspace.Config;
+            var schema = workspace.Connection.ExecuteScalar<long>("PRAGMA user_version");
+            var integrity = workspace.Connection.ExecuteScalar<string>("PRAGMA quick_check") ?? "";
+            var allocations = config.Allocations.Select(a => new
+            {
+                a.Machine,
+                a.Amount,
+                Unit = a.UnitName,
+                CoreHours = a.CoreHours(workspace.Machine(a.Machine)),
+                Start = a.Start.ToString("yyyy-MM-dd", System.Globalization.CultureInfo.InvariantCulture),
+                End = a.End.ToString("yyyy-MM-dd", System.Globalization.CultureInfo.InvariantCulture),
+                Windows = a.Windows.Select(w => new
+                {
+                    Start = w.Start.ToString("yyyy-MM-dd", System.Globalization.CultureInfo.InvariantCulture),
+                    End = w.End.ToString("yyyy-MM-dd", System.Globalization.CultureInfo.InvariantCulture),
+                    w.Amount,
+                }).ToList(),
+            }).ToList();
+            if (context.Json)
+            {
+                Json.Write(context.Out, new
+                {
+                    Workspace = workspace.Root,
+                    config.Name,
+                    config.Machines,
+                    config.DefaultMachine,
+                    Allocations = allocations,
+                    DefaultLevels = config.Defaults.Levels,
+                    DefaultCores = config.Defaults.Cores,
+                    SchemaVersion = schema,
+                    Integrity = integrity,
+                });
+                return ExitCodes.Ok;
+            }
+
+            context.Out.WriteLine($"Workspace {workspace.Root}: ok");
+            context.Out.WriteLine($"  campaign        {config.Name}");
+            context.Out.WriteLine($"  machines        {string.Join(", ", config.Machines)} (default {config.DefaultMachine})");
+            context.Out.WriteLine($"  default levels  {string.Join(", ", config.Defaults.Levels)}; cores {(config.Defaults.Cores is { } c ? Format.Integer(c) : "(per candidate)")}");
+            context.Out.WriteLine($"  database        schema version {schema}, integrity {integrity}");
+            if (allocations.Count == 0)
+            {
+                context.Out.WriteLine("  allocations     none configured");
+                return ExitCodes.Ok;
+            }
+
+            context.Out.WriteLine();
+            var table = new TextTable("machine", "period", "amount", "unit", "core-hours", "windows");
+            foreach (var a in allocations)
+            {
+                table.Add(a.Machine, a.Start + " .. " + a.End, Format.Grouped(a.Amount), a.Unit, Format.Grouped(a.CoreHours), Format.Integer(a.Windows.Count));
+            }
+
+            table.WriteTo(context.Out);
+            context.Out.WriteLine("Allocations as written in campaign.toml; the site's own accounting is what counts.");
+            return ExitCodes.Ok;
+        });
+        return command;
+    }
+}

@@ -1,0 +1,39 @@
+using System.CommandLine;
+using Campaign.Cli.Output;
+using Campaign.Store;
+
+namespace Campaign.Cli.Commands;
+
+/// <summary>campaign init [DIR] [--force]: creates a workspace from the built-in template and machine profiles.</summary>
+internal static class InitCommand
+{
+    public static Command Build(CampaignApp app)
+    {
+        var folder = new Argument<string?>("DIR") { Description = "Folder to create the workspace in (default: --dir, else the current folder)", Arity = ArgumentArity.ZeroOrOne };
+        var force = new Option<bool>("--force") { Description = "Write into a folder that is not empty (an existing campaign.db is kept and migrated, never replaced)" };
+        var command = new Command("init", "Create a workspace: campaign.toml, machines/*.toml and campaign.db") { folder, force };
+        app.Bind(command, context =>
+        {
+            var target = context.Parse.GetValue(folder) is { } given ? app.Resolve(given) : context.Workspace;
+            var template = new WorkspaceTemplate(EmbeddedFiles.Read("templates/campaign.toml"), EmbeddedFiles.Under("profiles/"));
+            var written = WorkspaceCreator.Create(target, template, context.Parse.GetValue(force), context.Time);
+            if (context.Json)
+            {
+                Json.Write(context.Out, new { Workspace = target, Files = written });
+            }
+            else
+            {
+                context.Out.WriteLine($"Created workspace {target}");
+                foreach (var file in written)
+                {
+                    context.Out.WriteLine("  " + Path.GetRelativePath(target, file));
+                }
+
+                context.Out.WriteLine("Next: edit campaign.toml (name, machines, allocations), then `campaign --dir " + target + " check`.");
+            }
+
+            return ExitCodes.Ok;
+        });
+        return command;
+    }
+}

@@ -1,0 +1,87 @@
+using System.CommandLine;
+using Campaign.Cli.Output;
+using Campaign.Core.Configuration;
+using Campaign.Core.Domain;
+using Campaign.Store;
+
+namespace Campaign.Cli.Commands;
+
+/// <summary>campaign machines [check FILE...]: lists machine profiles, or validates profile files.</summary>
+internal static class MachinesCommand
+{
+    public static Command Build(CampaignApp app)
+    {
+        var command = new Command("machines", "List the machine profiles of the workspace (the built-in ones outside a workspace)");
+        app.Bind(command, context =>
+        {
+            var profiles = Workspace.Exists(context.Workspace)
+                ? Workspace.ReadSettings(context.Workspace).Machines.Values.ToList()
+                : EmbeddedFiles.Under("profiles/").Select(p => MachineProfileReader.Read(p.Value, p.Key)).ToList();
+            Write(context, profiles);
+            return ExitCodes.Ok;
+        });
+
+        var files = new Argument<string[]>("FILE") { Description = "Machine profile files (TOML) to validate", Arity = ArgumentArity.OneOrMore };
+        var check = new Command("check", "Validate machine profile files and show what they say") { files };
+        app.Bind(check, context =>
+        {
+            var problems = new List<string>();
+            var profiles = new List<MachineProfile>();
+            foreach (var file in context.Parse.GetValue(files) ?? Array.Empty<string>())
+            {
+                var path = app.Resolve(file);
+                if (!File.Exists(path))
+                {
+                    problems.Add($"{file}: no such file: expected a machine profile (TOML)");
+                    continue;
+                }
+
+                try
+                {
+                    profiles.Add(MachineProfileReader.Read(File.ReadAllText(path), file));
+                }
+                catch (InvalidInputException e)
+                {
+                    problems.AddRange(e.Problems);
+                }
+            }
+
+            if (problems.Count > 0)
+            {
+                throw new InvalidInputException(problems);
+            }
+
+            Write(context, profiles);
+            return ExitCodes.Ok;
+        });
+        command.Add(check);
+        return command;
+    }
+
+    private static void Write(CommandContext context, IReadOnlyList<MachineProfile> profiles)
+    {
+        if (context.Json)
+        {
+            Json.Write(context.Out, new { Machines = profiles });
+            return;
+        }
+
+        var table = new TextTable("machine", "batch", "cores/node", "mem GB/node", "wall limit h", "charged as", "factor", "speed", "jobs queued/running", "queue wait h (median, p90)");
+        foreach (var p in profiles)
+        {
+            table.Add(
+                p.Name,
+                p.BatchSystem.ToString().ToLowerInvariant(),
+                Format.Integer(p.CoresPerNode),
+                Format.Significant(p.MemoryPerNodeGb),
+                Format.Significant(p.WallLimitHours),
+                p.ChargeWholeNodes ? "whole nodes" : "cores",
+                Format.Significant(p.ChargeFactor),
+                Format.Significant(p.RelativeSpeed),
+                Format.Integer(p.MaxJobsQueued) + "/" + Format.Integer(p.MaxJobsRunning),
+                Format.Significant(p.QueueWaitMedianHours) + ", " + Format.Significant(p.QueueWaitP90Hours));
+        }
+
+        table.WriteTo(context.Out);
+    }
+}

@@ -1,0 +1,3 @@
+using Campaign.Cli;
+
+return new CampaignApp(Console.Out, Console.Error, TimeProvider.System, Environment.CurrentDirectory).Run(args);

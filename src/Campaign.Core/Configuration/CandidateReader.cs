@@ -1,0 +1,151 @@
+using System.Globalization;
+using Campaign.Core.Domain;
+using Campaign.Core.Physics;
+using Campaign.Core.Text;
+
+namespace Campaign.Core.Configuration;
+
+/// <summary>
+/// Reads a candidate file (CSV): id, q, chi1x..chi2z (x and y may be omitted), omega0 or orbits, levels
+/// ("2;3;4"), cores, cluster, and optional value, must, core_hours. Missing levels, cores and cluster come
+/// from the workspace defaults. Every problem in every row is reported as "file:line:column: ..." and
+/// nothing is returned unless the whole file is valid.
+/// </summary>
+public static class CandidateReader
+{
+    /// <summary>Columns the reader understands; others are kept by callers that want them, and ignored here.</summary>
+    public static readonly string[] Columns =
+    {
+        "id", "q", "chi1x", "chi1y", "chi1z", "chi2x", "chi2y", "chi2z", "omega0", "orbits", "levels", "cores",
+        "cluster", "value", "must", "core_hours",
+    };
+
+    /// <summary>Parses and validates the file text.</summary>
+    public static IReadOnlyList<Candidate> Read(string text, string source, LengthSettings settings, RunDefaults defaults, string defaultMachine, IReadOnlyCollection<string> knownMachines)
+    {
+        CsvTable table;
+        try
+        {
+            table = CsvTable.Parse(text, source);
+        }
+        catch (InvalidDataException e)
+        {
+            throw new InvalidInputException(new[] { e.Message });
+        }
+
+        var problems = new List<string>();
+        foreach (var required in new[] { "id", "q" })
+        {
+            if (!table.Has(required))
+            {
+                problems.Add($"{source}:1:1: column '{required}' is missing: expected a header with at least id, q and omega0 or orbits");
+            }
+        }
+
+        if (!table.Has("omega0") && !table.Has("orbits"))
+        {
+            problems.Add($"{source}:1:1: neither 'omega0' nor 'orbits' is a column: expected one of them");
+        }
+
+        if (problems.Count > 0)
+        {
+            throw new InvalidInputException(problems);
+        }
+
+        var candidates = new List<Candidate>();
+        var ids = new Dictionary<string, int>(StringComparer.Ordinal);
+        foreach (var row in table.Rows)
+        {
+            var cells = new RowCells(table, row, problems);
+            var id = cells.Text("id");
+            if (string.IsNullOrWhiteSpace(id))
+            {
+                cells.Problem("id", id ?? "", "a non-empty identifier");
+            }
+            else if (!ids.TryAdd(id, row.Line))
+            {
+                cells.Problem("id", id, $"a unique id; it is already used on line {ids[id].ToString(CultureInfo.InvariantCulture)}");
+            }
+
+            var draft = new BinaryConfigurationDraft
+            {
+                Name = id ?? "",
+                Q = cells.Number("q"),
+                Chi1X = cells.Number("chi1x") ?? 0,
+                Chi1Y = cells.Number("chi1y") ?? 0,
+                Chi1Z = cells.Number("chi1z") ?? 0,
+                Chi2X = cells.Number("chi2x") ?? 0,
+                Chi2Y = cells.Number("chi2y") ?? 0,
+                Chi2Z = cells.Number("chi2z") ?? 0,
+                Omega0 = cells.Number("omega0"),
+                Orbits = cells.Number("orbits"),
+                Cores = cells.Integer("cores") ?? defaults.Cores,
+            };
+            var levels = cells.Levels("levels");
+            draft.Levels.AddRange(levels ?? defaults.Levels.Select(l => (long)l));
+            var machine = cells.Text("cluster");
+            if (string.IsNullOrEmpty(machine))
+            {
+                machine = defaultMachine;
+            }
+            else if (!knownMachines.Contains(machine))
+            {
+                cells.Problem("cluster", machine, "a machine with a profile: " + string.Join(", ", knownMachines.Order(StringComparer.Ordinal)));
+            }
+
+            var value = cells.Number("value") ?? 1.0;
+            if (!(double.IsFinite(value) && value >= 0 && value <= 1e9))
+            {
+                cells.Problem("value", cells.Text("value") ?? "", "a weight from 0 to 1e9");
+            }
+
+            var must = cells.Boolean("must") ?? false;
+            var coreHours = cells.Number("core_hours");
+            if (coreHours is { } ch && !(double.IsFinite(ch) && ch > 0 && ch <= 1e12))
+            {
+                cells.Problem("core_hours", cells.Text("core_hours") ?? "", "a cost in core-hours greater than 0 and at most 1e12");
+            }
+
+            foreach (var problem in draft.Validate(settings, includeRunFields: true))
+            {
+                var column = ColumnOf(problem.Field);
+                if (!cells.HasProblem(column))
+                {
+                    cells.Problem(column, problem.Value, problem.Expected, problem.Field);
+                }
+            }
+
+            if (problems.Count > 0)
+            {
+                continue;
+            }
+
+            try
+            {
+                candidates.Add(new Candidate(id!, draft.BuildRunSpec(settings), machine, value, must, coreHours));
+            }
+            catch (InvalidInputException e)
+            {
+                foreach (var message in e.Problems)
+                {
+                    problems.Add($"{source}:{row.Line.ToString(CultureInfo.InvariantCulture)}:1: {message}");
+                }
+            }
+        }
+
+        if (problems.Count > 0)
+        {
+            throw new InvalidInputException(problems);
+        }
+
+        return candidates;
+    }
+
+    private static string ColumnOf(string field) => field switch
+    {
+        "|chi1|" => "chi1z",
+        "|chi2|" => "chi2z",
+        "level" => "levels",
+        _ => field,
+    };
+}
