@@ -447,7 +447,7 @@ public static partial class TomlDocument
                 }
                 else if (Peek != ']')
                 {
-                    throw Error(AtEnd ? "the array is not closed: expected ']'" : $"unexpected '{Peek}' in an array: expected ',' or ']'");
+                    throw AtEnd ? Error("the array is not closed: expected ']'", line, column) : Error($"unexpected '{Peek}' in an array: expected ',' or ']'");
                 }
             }
         }
