@@ -1,0 +1,17 @@
+using System.Text.Json;
+
+namespace Campaign.Cli.Tests.Support;
+
+/// <summary>Runs the campaign command in-process with captured output.</summary>
+public sealed record CliRun(int ExitCode, string Out, string Err)
+{
+    public static CliRun Of(string currentDirectory, params string[] args)
+    {
+        var output = new StringWriter();
+        var error = new StringWriter();
+        var code = new CampaignApp(output, error, FixedTime.Default, currentDirectory).Run(args);
+        return new CliRun(code, output.ToString(), error.ToString());
+    }
+
+    public JsonElement Json() => JsonDocument.Parse(Out).RootElement;
+}

@@ -1,0 +1,74 @@
+using Campaign.Cli.Tests.Support;
+using Microsoft.Data.Sqlite;
+
+namespace Campaign.Cli.Tests;
+
+public class WorkspaceCommandTests
+{
+    [Fact]
+    public void Init_then_check_reports_the_new_workspace()
+    {
+        using var folder = new TempFolder();
+        Assert.Equal(0, CliRun.Of(folder.Path, "init", "ws").ExitCode);
+        var check = CliRun.Of(folder.Path, "--dir", "ws", "check", "--json");
+        Assert.Equal(0, check.ExitCode);
+        var json = check.Json();
+        Assert.Equal("My campaign", json.GetProperty("name").GetString());
+        Assert.Equal("ok", json.GetProperty("integrity").GetString());
+        Assert.Equal(1, json.GetProperty("schema_version").GetInt32());
+    }
+
+    [Fact]
+    public void Init_refuses_a_non_empty_folder_with_exit_2()
+    {
+        using var folder = new TempFolder();
+        File.WriteAllText(folder.File("keep.txt"), "x");
+        var run = CliRun.Of(folder.Path, "init", ".");
+        Assert.Equal(2, run.ExitCode);
+        Assert.Contains("the folder is not empty", run.Err);
+    }
+
+    [Fact]
+    public void A_database_from_a_newer_build_is_a_runtime_failure_with_exit_3()
+    {
+        using var folder = new TempFolder();
+        CliRun.Of(folder.Path, "init", ".");
+        using (var connection = new SqliteConnection($"Data Source={folder.File("campaign.db")};Pooling=False"))
+        {
+            connection.Open();
+            using var command = connection.CreateCommand();
+            command.CommandText = "PRAGMA user_version = 42";
+            command.ExecuteNonQuery();
+        }
+
+        var run = CliRun.Of(folder.Path, "check");
+        Assert.Equal(3, run.ExitCode);
+        Assert.Contains("campaign.db has schema version 42, written by a newer campaign", run.Err);
+    }
+
+    [Fact]
+    public void Machines_lists_the_built_in_profiles_and_check_locates_errors()
+    {
+        using var folder = new TempFolder();
+        var list = CliRun.Of(folder.Path, "machines", "--json");
+        Assert.Equal(0, list.ExitCode);
+        Assert.Equal(3, list.Json().GetProperty("machines").GetArrayLength());
+
+        File.WriteAllText(folder.File("m.toml"), "name = \"m\"\nbatch_system = \"slurm\"\ncores_per_node = 0\nmemory_per_node_gb = 4\nwall_limit_hours = 1\ncharge_whole_nodes = true\n");
+        var check = CliRun.Of(folder.Path, "machines", "check", "m.toml");
+        Assert.Equal(2, check.ExitCode);
+        Assert.Contains("m.toml:3:18: cores_per_node = 0: expected an integer from 1 to 100000", check.Err);
+    }
+
+    [Fact]
+    public void Demo_creates_a_workspace_and_prints_the_lengths_of_every_candidate()
+    {
+        using var folder = new TempFolder();
+        var run = CliRun.Of(folder.Path, "demo", "demo-ws", "--json");
+        Assert.Equal(0, run.ExitCode);
+        var json = run.Json();
+        Assert.Equal(16, json.GetProperty("runs").GetArrayLength());
+        Assert.True(File.Exists(Path.Combine(folder.Path, "demo-ws", "campaign.db")));
+        Assert.Equal(0, CliRun.Of(folder.Path, "--dir", "demo-ws", "check").ExitCode);
+    }
+}
