@@ -5,21 +5,10 @@ namespace Campaign.Cli.Tests;
 
 public class DocumentationTests
 {
-    private static string RepositoryRoot()
-    {
-        var dir = new DirectoryInfo(AppContext.BaseDirectory);
-        while (dir is not null && !File.Exists(Path.Combine(dir.FullName, "Campaign.sln")))
-        {
-            dir = dir.Parent;
-        }
-
-        return dir?.FullName ?? throw new InvalidOperationException("Campaign.sln not found above the test folder.");
-    }
-
     [Fact]
     public void The_command_reference_mentions_every_command_and_option()
     {
-        var docs = File.ReadAllText(Path.Combine(RepositoryRoot(), "docs", "cli.md"));
+        var docs = File.ReadAllText(Path.Combine(RepositoryRoot.Path, "docs", "cli.md"));
         var root = new CampaignApp(TextWriter.Null, TextWriter.Null, FixedTime.Default, ".").BuildCommands();
         var missing = new List<string>();
         void Walk(Command command, string path)

@@ -10,16 +10,7 @@ public class ArchitectureTests
         @"\bFile\.", @"\bDirectory\.", @"\bConsole\.", @"DateTime(Offset)?\.(Utc)?Now", @"\bProcess\.", @"\bEnvironment\.(?!NewLine)", @"TimeProvider\.System",
     };
 
-    private static string CoreSource()
-    {
-        var dir = new DirectoryInfo(AppContext.BaseDirectory);
-        while (dir is not null && !File.Exists(Path.Combine(dir.FullName, "Campaign.sln")))
-        {
-            dir = dir.Parent;
-        }
-
-        return Path.Combine(dir!.FullName, "src", "Campaign.Core");
-    }
+    private static string CoreSource() => Path.Combine(RepositoryRoot.Path, "src", "Campaign.Core");
 
     [Fact]
     public void Core_source_uses_no_files_processes_console_or_wall_clock()

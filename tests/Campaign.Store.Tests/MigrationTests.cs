@@ -1,6 +1,5 @@
 using System.Security.Cryptography;
 using Campaign.Store.Schema;
-using Campaign.Store.Tests.Support;
 using Dapper;
 using Microsoft.Data.Sqlite;
 

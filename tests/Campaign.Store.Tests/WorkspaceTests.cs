@@ -1,5 +1,4 @@
 using Campaign.Core.Domain;
-using Campaign.Store.Tests.Support;
 using Dapper;
 
 namespace Campaign.Store.Tests;

@@ -21,15 +21,7 @@ public static partial class MachineProfileReader
     /// <summary>Parses and validates; throws <see cref="InvalidInputException"/> listing every located problem.</summary>
     public static MachineProfile Read(string text, string source)
     {
-        TomlTable root;
-        try
-        {
-            root = TomlDocument.Parse(text, source);
-        }
-        catch (InvalidDataException e)
-        {
-            throw new InvalidInputException(new[] { e.Message });
-        }
+        var root = TomlFields.Parse(text, source);
 
         var problems = new List<string>();
         var fields = new TomlFields(root, source, problems);

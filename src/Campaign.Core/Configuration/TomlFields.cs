@@ -70,12 +70,7 @@ public sealed class TomlFields
             return null;
         }
 
-        double number = value.Kind switch
-        {
-            TomlKind.Integer => (long)value.Value,
-            TomlKind.Float => (double)value.Value,
-            _ => double.NaN,
-        };
+        var number = AsNumber(value);
         if (!double.IsFinite(number) || number < min || number > max)
         {
             return Wrong<double?>(key, value, expected);
@@ -93,12 +88,7 @@ public sealed class TomlFields
             return null;
         }
 
-        double number = value.Kind switch
-        {
-            TomlKind.Integer => (long)value.Value,
-            TomlKind.Float => (double)value.Value,
-            _ => double.NaN,
-        };
+        var number = AsNumber(value);
         return double.IsFinite(number) ? number : Wrong<double?>(key, value, "a finite number");
     }
 
@@ -112,12 +102,7 @@ public sealed class TomlFields
             return null;
         }
 
-        double number = value.Kind switch
-        {
-            TomlKind.Integer => (long)value.Value,
-            TomlKind.Float => (double)value.Value,
-            _ => double.NaN,
-        };
+        var number = AsNumber(value);
         if (!double.IsFinite(number) || number <= 0 || number > max)
         {
             return Wrong<double?>(key, value, expected);
@@ -274,6 +259,27 @@ public sealed class TomlFields
         {
             _table.TryGet(key, out var value);
             Add(value.Line, value.Column, $"unknown field '{_table.NameOf(key)}': expected one of {string.Join(", ", known)}");
+        }
+    }
+
+    /// <summary>The value as a double: integers widen, floats pass through, anything else is NaN.</summary>
+    private static double AsNumber(TomlValue value) => value.Kind switch
+    {
+        TomlKind.Integer => (long)value.Value,
+        TomlKind.Float => (double)value.Value,
+        _ => double.NaN,
+    };
+
+    /// <summary>Parses TOML text, turning a syntax error into <see cref="InvalidInputException"/> (exit code 2).</summary>
+    public static TomlTable Parse(string text, string source)
+    {
+        try
+        {
+            return TomlDocument.Parse(text, source);
+        }
+        catch (InvalidDataException e)
+        {
+            throw new InvalidInputException(new[] { e.Message });
         }
     }
 

@@ -13,15 +13,7 @@ public static class WorkspaceConfigReader
     /// </summary>
     public static WorkspaceConfig Read(string text, string source, IReadOnlyCollection<string> knownMachines)
     {
-        TomlTable root;
-        try
-        {
-            root = TomlDocument.Parse(text, source);
-        }
-        catch (InvalidDataException e)
-        {
-            throw new InvalidInputException(new[] { e.Message });
-        }
+        var root = TomlFields.Parse(text, source);
 
         var problems = new List<string>();
         var top = new TomlFields(root, source, problems);

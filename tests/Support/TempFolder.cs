@@ -1,4 +1,4 @@
-namespace Campaign.Cli.Tests.Support;
+namespace Campaign.Testing;
 
 /// <summary>A fresh folder under the system temp folder, deleted on dispose.</summary>
 public sealed class TempFolder : IDisposable

@@ -1,4 +1,4 @@
-namespace Campaign.Cli.Tests.Support;
+namespace Campaign.Testing;
 
 /// <summary>A clock stopped at one instant (hand-written; tests never wait for time to pass).</summary>
 public sealed class FixedTime : TimeProvider
