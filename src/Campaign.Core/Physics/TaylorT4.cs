@@ -71,7 +71,7 @@ public sealed class TaylorT4
     /// <summary>
     /// Inspiral from orbital frequency <paramref name="omega0"/> to x = <paramref name="xEnd"/>: elapsed time (M)
     /// and orbits, N = (1/2 pi) integral of omega dt. Throws when dx/dt stops being positive inside the range,
-    /// which means the PN series has broken down for this configuration.
+    /// which means the PN series has broken down for this configuration (<see cref="InvalidInputException"/>).
     /// </summary>
     public Inspiral Integrate(double omega0, double xEnd)
     {
@@ -134,8 +134,10 @@ public sealed class TaylorT4
             var rate = XDot(x);
             if (!(rate > 0) || !double.IsFinite(rate))
             {
-                throw new InvalidOperationException(
-                    $"TaylorT4 dx/dt is not positive at x = {FieldProblem.Show(x)} (M*omega = {FieldProblem.Show(Math.Pow(x, 1.5))}): the post-Newtonian series breaks down before x_end = {FieldProblem.Show(xEnd)} for this configuration; lower the end of inspiral.");
+                throw new InvalidInputException(new[]
+                {
+                    $"TaylorT4 dx/dt is not positive at x = {FieldProblem.Show(x)} (M*omega = {FieldProblem.Show(Math.Pow(x, 1.5))}): the post-Newtonian series breaks down before x_end = {FieldProblem.Show(xEnd)} for this configuration; lower end_of_inspiral_x in [length].",
+                });
             }
         }
     }
