@@ -64,6 +64,9 @@ public sealed class CampaignApp
         root.Add(CheckCommand.Build(this));
         root.Add(LengthCommand.Build(this));
         root.Add(MachinesCommand.Build(this));
+        root.Add(LogsCommand.Build(this));
+        root.Add(ModelCommand.Build(this));
+        root.Add(EstimateCommand.Build(this));
         root.Add(DemoCommand.Build(this));
         return root;
     }

@@ -15,7 +15,7 @@ public class WorkspaceCommandTests
         var json = check.Json();
         Assert.Equal("My campaign", json.GetProperty("name").GetString());
         Assert.Equal("ok", json.GetProperty("integrity").GetString());
-        Assert.Equal(1, json.GetProperty("schema_version").GetInt32());
+        Assert.Equal(Campaign.Store.Schema.Migrations.Latest, json.GetProperty("schema_version").GetInt32());
     }
 
     [Fact]
@@ -67,7 +67,10 @@ public class WorkspaceCommandTests
         var run = CliRun.Of(folder.Path, "demo", "demo-ws", "--json");
         Assert.Equal(0, run.ExitCode);
         var json = run.Json();
-        Assert.Equal(16, json.GetProperty("runs").GetArrayLength());
+        var steps = json.GetProperty("steps");
+        Assert.Equal(16, steps.GetProperty("lengths").GetProperty("runs").GetArrayLength());
+        Assert.True(steps.GetProperty("model").GetProperty("n_runs").GetInt32() > 100);
+        Assert.True(steps.GetProperty("estimate").GetProperty("runs").GetArrayLength() > 40);
         Assert.True(File.Exists(Path.Combine(folder.Path, "demo-ws", "campaign.db")));
         Assert.Equal(0, CliRun.Of(folder.Path, "--dir", "demo-ws", "check").ExitCode);
     }

@@ -1,14 +1,16 @@
 using System.CommandLine;
 using System.Globalization;
+using System.Text.Json;
 using Campaign.Cli.Output;
+using Campaign.Core.CostModel;
 using Campaign.Store;
 
 namespace Campaign.Cli.Commands;
 
 /// <summary>
 /// campaign demo [DIR]: the quick start. Creates a workspace of the invented demo group (config, machine
-/// profiles, candidate configurations) and runs the planning job that exists so far on it: the run length and
-/// remnant physics of every candidate. Later steps of the demo grow here as the tool grows.
+/// profiles, run logs, candidate configurations) and runs the whole job that exists so far on it: run lengths,
+/// log import, cost-model fit and the proposal estimate. Later steps of the demo grow here as the tool grows.
 /// </summary>
 internal static class DemoCommand
 {
@@ -16,37 +18,73 @@ internal static class DemoCommand
     {
         var folder = new Argument<string?>("DIR") { Description = "Folder for the demo workspace (default: a new folder under the system's temporary folder)", Arity = ArgumentArity.ZeroOrOne };
         var force = new Option<bool>("--force") { Description = "Write into a folder that is not empty" };
-        var command = new Command("demo", "Create the demo workspace (an invented group) and run the planning job on it") { folder, force };
+        var command = new Command("demo", "Create the demo workspace (an invented group) and run the whole job on it") { folder, force };
         app.Bind(command, context =>
         {
             var target = context.Parse.GetValue(folder) is { } given
                 ? app.Resolve(given)
                 : Path.Combine(Path.GetTempPath(), "campaign-demo-" + context.Time.GetUtcNow().ToString("yyyyMMdd-HHmmss", CultureInfo.InvariantCulture));
             var demo = EmbeddedFiles.Under("demo/");
-            var template = new WorkspaceTemplate(demo["campaign.toml"], EmbeddedFiles.Under("profiles/"));
-            var log = context.Json ? TextWriter.Null : context.Out;
-            WorkspaceCreator.Create(target, template, context.Parse.GetValue(force), context.Time);
+            WorkspaceCreator.Create(target, new WorkspaceTemplate(demo["campaign.toml"], EmbeddedFiles.Under("profiles/")), context.Parse.GetValue(force), context.Time);
             var candidatesPath = Path.Combine(target, "candidates.csv");
+            var logsPath = Path.Combine(target, "run-logs.csv");
             File.WriteAllText(candidatesPath, demo["candidates.csv"]);
-            log.WriteLine($"Demo workspace: {target}");
-            log.WriteLine("  campaign.toml, machines/*.toml, campaign.db, candidates.csv (an invented group's planned runs)");
-            log.WriteLine();
+            File.WriteAllText(logsPath, demo["run-logs.csv"]);
 
-            var (config, machines) = Workspace.ReadSettings(target);
-            var rows = LengthCommand.ForFile(candidatesPath, "candidates.csv", context, config.Length, config.Defaults, config.DefaultMachine, machines.Keys.ToList());
+            // In --json mode every step writes JSON into its own buffer; the demo prints them as one document.
+            var steps = new Dictionary<string, StringWriter>();
+            CommandContext Step(string name)
+            {
+                if (!context.Json)
+                {
+                    return context;
+                }
+
+                steps[name] = new StringWriter();
+                return context with { Out = steps[name] };
+            }
+
+            var o = context.Json ? TextWriter.Null : context.Out;
+            o.WriteLine($"Demo workspace: {target}");
+            o.WriteLine("  an invented group's config, machine profiles, past runs (run-logs.csv) and planned runs (candidates.csv)");
+            o.WriteLine();
+
+            using var workspace = Workspace.Open(target, context.Time);
+            var config = workspace.Config;
+            o.WriteLine("== 1. How long must each planned run be? (post-Newtonian inspiral + merger + ringdown)");
+            var lengths = LengthCommand.ForFile(candidatesPath, "candidates.csv", context, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
+            LengthCommand.Write(Step("lengths"), lengths, config.Length);
+            o.WriteLine();
+
+            o.WriteLine("== 2. Import the group's past runs");
+            var (imported, total) = LogsCommand.Import(workspace, logsPath, "run-logs.csv", replace: false, context.Time);
+            o.WriteLine($"run-logs.csv: {imported.Added} runs imported; {total} in the workspace.");
+            o.WriteLine();
+
+            o.WriteLine("== 3. Fit the cost model to them");
+            var (modelId, model) = ModelCommand.FitAndStore(workspace, new CostFitOptions { Robust = true }, context.Time);
+            ModelCommand.Write(Step("model"), modelId, context.Time.GetUtcNow().ToString("O", CultureInfo.InvariantCulture), model);
+            o.WriteLine();
+
+            o.WriteLine("== 4. Estimate the proposal: core-hours, wall time, segments, charges and storage per run and level");
+            EstimateCommand.Write(Step("estimate"), workspace, candidatesPath, "candidates.csv", new EstimateOptions { EccentricityTrials = 2 }, "table");
+            o.WriteLine();
+
             if (context.Json)
             {
-                Json.Write(context.Out, new { Workspace = target, Candidates = "candidates.csv", config.Length, Runs = rows });
+                Json.Write(context.Out, new
+                {
+                    Workspace = target,
+                    Steps = steps.ToDictionary(s => s.Key, s => JsonDocument.Parse(s.Value.ToString()).RootElement),
+                });
                 return ExitCodes.Ok;
             }
 
-            log.WriteLine($"Run lengths of the {rows.Count} demo candidates ({config.Name}):");
-            LengthRow.WriteTable(log, rows);
-            log.WriteLine();
-            log.WriteLine("Explore it:");
-            log.WriteLine($"  ./campaign --dir {target} check");
-            log.WriteLine($"  ./campaign --dir {target} machines");
-            log.WriteLine($"  ./campaign --dir {target} length --q 4 --chi1z 0.5 --omega0 0.016");
+            o.WriteLine("Explore it:");
+            o.WriteLine($"  ./campaign --dir {target} check");
+            o.WriteLine($"  ./campaign --dir {target} model show");
+            o.WriteLine($"  ./campaign --dir {target} estimate {candidatesPath} --format md");
+            o.WriteLine($"  ./campaign --dir {target} length --q 4 --chi1z 0.5 --omega0 0.016");
             return ExitCodes.Ok;
         });
         return command;

@@ -14,7 +14,7 @@ public sealed record CostObservation(string Id, double LogLength, double LogQ, d
     public const double SpinCap = 0.999;
 
     /// <summary>The spin term -ln(1 - min(max(|chi1|, |chi2|), 0.999)).</summary>
-    public static double Spin(BinaryConfiguration c) => -Math.Log(1 - Math.Min(Math.Max(c.Chi1.Magnitude, c.Chi2.Magnitude), SpinCap));
+    public static double Spin(BinaryConfiguration c) => Math.Max(0.0, -Math.Log(1 - Math.Min(Math.Max(c.Chi1.Magnitude, c.Chi2.Magnitude), SpinCap)));
 
     /// <summary>Features of a planned run of simulated length <paramref name="length"/> (M).</summary>
     public static CostObservation For(string id, BinaryConfiguration c, int level, int cores, MachineProfile machine, double length) =>

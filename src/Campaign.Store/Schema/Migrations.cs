@@ -23,6 +23,42 @@ public static class Migrations
             ) STRICT;
             CREATE INDEX events_by_subject ON events (subject, id);
             """),
+        new Migration(2, "run logs and fitted cost models", """
+            CREATE TABLE run_logs (
+                run_id        TEXT PRIMARY KEY NOT NULL,
+                q             REAL NOT NULL,
+                chi1x         REAL NOT NULL,
+                chi1y         REAL NOT NULL,
+                chi1z         REAL NOT NULL,
+                chi2x         REAL NOT NULL,
+                chi2y         REAL NOT NULL,
+                chi2z         REAL NOT NULL,
+                omega0        REAL NOT NULL,
+                level         INTEGER NOT NULL,
+                cores         INTEGER NOT NULL,
+                machine       TEXT NOT NULL,
+                wall_hours    REAL NOT NULL,
+                outcome       TEXT NOT NULL CHECK (outcome IN ('completed', 'failed', 'partial')),
+                core_hours    REAL,
+                t_end         REAL,
+                orbits        REAL,
+                segments      INTEGER,
+                checkpoint_gb REAL,
+                output_gb     REAL,
+                started       TEXT,
+                finished      TEXT,
+                extra_json    TEXT NOT NULL,
+                source        TEXT NOT NULL,
+                imported_at   TEXT NOT NULL
+            ) STRICT;
+
+            CREATE TABLE cost_models (
+                id          INTEGER PRIMARY KEY,
+                fitted_at   TEXT NOT NULL,
+                run_count   INTEGER NOT NULL,
+                model_json  TEXT NOT NULL
+            ) STRICT;
+            """),
     };
 
     /// <summary>Schema version this build writes.</summary>

@@ -1,0 +1,189 @@
+using System.CommandLine;
+using System.Globalization;
+using Campaign.Cli.Output;
+using Campaign.Core.Configuration;
+using Campaign.Core.CostModel;
+using Campaign.Core.Domain;
+using Campaign.Store;
+
+namespace Campaign.Cli.Commands;
+
+/// <summary>campaign estimate FILE: proposal-ready core-hour estimates for candidate configurations.</summary>
+internal static class EstimateCommand
+{
+    /// <summary>The caution printed with every estimate.</summary>
+    public const string Caution =
+        "These are statistical estimates from the group's own run history, not guarantees; the allocating site's charging rules and policies decide what is charged.";
+
+    public static Command Build(CampaignApp app)
+    {
+        var file = new Argument<string>("FILE") { Description = "Candidate file (CSV; columns in docs/formats.md)" };
+        var interval = new Option<double>("--interval") { Description = "Central probability of the intervals (default 0.9)", DefaultValueFactory = _ => 0.9 };
+        var format = new Option<string>("--format") { Description = "table (default), md (Markdown for a proposal) or csv", DefaultValueFactory = _ => "table" };
+        format.AcceptOnlyFromAmong("table", "md", "csv");
+        var margin = new Option<double>("--checkpoint-margin") { Description = "Hours of each job kept for writing the checkpoint (default 0.5)", DefaultValueFactory = _ => 0.5 };
+        var trials = new Option<int>("--ecc-trials") { Description = "Eccentricity-reduction trial runs per configuration (default 0)" };
+        var trialLength = new Option<double>("--ecc-length") { Description = "Simulated length of each trial run in M (default 1500)", DefaultValueFactory = _ => 1500 };
+        var samples = new Option<int>("--samples") { Description = "Monte Carlo draws for the totals (default 4000)", DefaultValueFactory = _ => 4000 };
+        var seed = new Option<int>("--seed") { Description = "Seed of the Monte Carlo draws (default 1)", DefaultValueFactory = _ => 1 };
+        var command = new Command("estimate", "Core-hours, wall time, job segments, charges and storage for candidate configurations, with totals")
+        {
+            file, interval, format, margin, trials, trialLength, samples, seed,
+        };
+        app.Bind(command, context =>
+        {
+            var shown = context.Parse.GetValue(file)!;
+            var path = app.Resolve(shown);
+            if (!File.Exists(path))
+            {
+                throw new InvalidInputException(new[] { $"{shown}: no such file: expected a candidate file (CSV)" });
+            }
+
+            using var workspace = Workspace.Open(context.Workspace, context.Time);
+            var options = new EstimateOptions
+            {
+                Interval = context.Parse.GetValue(interval),
+                CheckpointMarginHours = context.Parse.GetValue(margin),
+                EccentricityTrials = context.Parse.GetValue(trials),
+                EccentricityTrialLength = context.Parse.GetValue(trialLength),
+                Samples = context.Parse.GetValue(samples),
+                Seed = context.Parse.GetValue(seed),
+            };
+            Write(context, workspace, path, shown, options, context.Parse.GetValue(format)!);
+            return ExitCodes.Ok;
+        });
+        return command;
+    }
+
+    /// <summary>Estimates the candidates of a file with the workspace's model and writes the result in <paramref name="format"/>.</summary>
+    public static void Write(CommandContext context, Workspace workspace, string path, string shown, EstimateOptions options, string format)
+    {
+        var config = workspace.Config;
+        var candidates = CandidateReader.Read(File.ReadAllText(path), shown, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
+        var latest = CostModelStore.Latest(workspace.Connection);
+        var training = TrainingSet.From(RunLogStore.All(workspace.Connection), workspace.Machines, config.Length);
+        var storage = StorageModel.Fit(training.Lengths);
+        var estimate = ProposalEstimator.Estimate(candidates, workspace.Machines, latest?.Model, storage, config.Length, options);
+        var allocations = config.Allocations.GroupBy(a => a.Machine).ToDictionary(g => g.Key, g => g.Sum(a => a.CoreHours(workspace.Machine(a.Machine))));
+        if (context.Json)
+        {
+            Json.Write(context.Out, new
+            {
+                File = shown,
+                ModelId = latest?.Id,
+                estimate.Interval,
+                estimate.Samples,
+                estimate.Seed,
+                StorageFromLogs = new { Checkpoint = storage.CheckpointFitted, Output = storage.OutputFitted },
+                estimate.Runs,
+                estimate.Total,
+                estimate.ByMachine,
+                Allocations = allocations,
+                Caution,
+            });
+            return;
+        }
+
+        switch (format)
+        {
+            case "csv":
+                WriteCsv(context.Out, estimate);
+                break;
+            case "md":
+                WriteMarkdown(context.Out, estimate, allocations, latest?.Id, storage);
+                break;
+            default:
+                WriteTable(context.Out, estimate, allocations, latest?.Id, storage);
+                break;
+        }
+    }
+
+    private static readonly string[] Header =
+    {
+        "id", "level", "kind", "machine", "cores", "T/M", "median core-h", "low", "high", "wall h", "segments", "node-h", "charged core-h", "checkpoint GB", "output GB", "flags",
+    };
+
+    private static string[] Cells(EstimateRow r) => new[]
+    {
+        r.Id, Format.Integer(r.Level), r.Kind, r.Machine, Format.Integer(r.Cores), Format.Fixed(r.LengthM, 0), Format.Fixed(r.Median, 0), Format.Fixed(r.Low, 0),
+        Format.Fixed(r.High, 0), Format.Fixed(r.WallHours, 1), Format.Integer(r.Segments), Format.Fixed(r.NodeHours, 0), Format.Fixed(r.ChargedCoreHours, 0),
+        Format.Fixed(r.CheckpointGb, 1), Format.Fixed(r.OutputGb, 1), Flags(r),
+    };
+
+    private static string Flags(EstimateRow r) => (r.Source == "given" ? "given " : "") + (r.Extrapolation.Count > 0 ? "EXTRAPOLATION" : "");
+
+    private static void WriteTable(TextWriter o, ProposalEstimate e, IReadOnlyDictionary<string, double> allocations, long? modelId, StorageModel storage)
+    {
+        var table = new TextTable(Header);
+        foreach (var r in e.Runs)
+        {
+            table.Add(Cells(r));
+        }
+
+        table.WriteTo(o);
+        WriteNotes(o, e, modelId, storage);
+        o.WriteLine();
+        var totals = new TextTable("total", "median core-h", $"{Pct(e.Interval)} interval", "mean", "charged median", "charged interval", "allocation core-h", "median / allocation");
+        foreach (var (name, t) in e.ByMachine.Append(new KeyValuePair<string, EstimateTotal>("ALL", e.Total)))
+        {
+            var allocation = name == "ALL" ? allocations.Values.Sum() : allocations.GetValueOrDefault(name);
+            totals.Add(name, Format.Fixed(t.Median, 0), $"{Format.Fixed(t.Low, 0)} .. {Format.Fixed(t.High, 0)}", Format.Fixed(t.Mean, 0), Format.Fixed(t.ChargedMedian, 0),
+                $"{Format.Fixed(t.ChargedLow, 0)} .. {Format.Fixed(t.ChargedHigh, 0)}", allocation > 0 ? Format.Fixed(allocation, 0) : "-", allocation > 0 ? Format.Fixed(t.ChargedMedian / allocation, 3) : "-");
+        }
+
+        totals.WriteTo(o);
+        o.WriteLine($"Totals: Monte Carlo over the model's coefficients (shared by all runs) and each run's residual, {e.Samples} draws, seed {e.Seed}.");
+        o.WriteLine(Caution);
+    }
+
+    private static void WriteNotes(TextWriter o, ProposalEstimate e, long? modelId, StorageModel storage)
+    {
+        o.WriteLine($"Core-hours consumed (wall x cores) at {Pct(e.Interval)} central prediction intervals; cost model {(modelId is null ? "(none: given costs only)" : modelId.Value.ToString(CultureInfo.InvariantCulture))}.");
+        o.WriteLine($"Storage: checkpoint {(storage.CheckpointFitted ? "fitted from logged sizes" : "rule of thumb (no sizes logged)")}, output {(storage.OutputFitted ? "fitted from logged sizes" : "rule of thumb (no sizes logged)")}.");
+        var flagged = e.Runs.Where(r => r.Extrapolation.Count > 0).ToList();
+        if (flagged.Count > 0)
+        {
+            o.WriteLine($"EXTRAPOLATION: {flagged.Count} rows lie outside the logged runs; treat them with extra care:");
+            foreach (var r in flagged.Take(10))
+            {
+                o.WriteLine($"  {r.Id} level {r.Level}{(r.Kind == "ecc" ? " (eccentricity trials)" : "")}: {string.Join("; ", r.Extrapolation)}");
+            }
+        }
+    }
+
+    private static void WriteMarkdown(TextWriter o, ProposalEstimate e, IReadOnlyDictionary<string, double> allocations, long? modelId, StorageModel storage)
+    {
+        o.WriteLine("| " + string.Join(" | ", Header) + " |");
+        o.WriteLine("|" + string.Concat(Header.Select(_ => "---|")));
+        foreach (var r in e.Runs)
+        {
+            o.WriteLine("| " + string.Join(" | ", Cells(r)) + " |");
+        }
+
+        o.WriteLine();
+        o.WriteLine($"| total | median core-h | {Pct(e.Interval)} interval | charged median | charged interval | allocation core-h |");
+        o.WriteLine("|---|---|---|---|---|---|");
+        foreach (var (name, t) in e.ByMachine.Append(new KeyValuePair<string, EstimateTotal>("ALL", e.Total)))
+        {
+            var allocation = name == "ALL" ? allocations.Values.Sum() : allocations.GetValueOrDefault(name);
+            o.WriteLine($"| {name} | {Format.Fixed(t.Median, 0)} | {Format.Fixed(t.Low, 0)} .. {Format.Fixed(t.High, 0)} | {Format.Fixed(t.ChargedMedian, 0)} | {Format.Fixed(t.ChargedLow, 0)} .. {Format.Fixed(t.ChargedHigh, 0)} | {(allocation > 0 ? Format.Fixed(allocation, 0) : "-")} |");
+        }
+
+        o.WriteLine();
+        WriteNotes(o, e, modelId, storage);
+        o.WriteLine(Caution);
+    }
+
+    private static void WriteCsv(TextWriter o, ProposalEstimate e)
+    {
+        o.WriteLine(string.Join(",", Header.Select(Quote)));
+        foreach (var r in e.Runs)
+        {
+            o.WriteLine(string.Join(",", Cells(r).Select(Quote)));
+        }
+    }
+
+    private static string Quote(string cell) => cell.IndexOfAny(new[] { ',', '"', '\n' }) >= 0 ? "\"" + cell.Replace("\"", "\"\"", StringComparison.Ordinal) + "\"" : cell;
+
+    private static string Pct(double p) => Format.Fixed(p * 100, 0) + "%";
+}

@@ -1,0 +1,201 @@
+using System.Globalization;
+using Campaign.Core.Domain;
+using Campaign.Core.Physics;
+using Campaign.Core.Text;
+
+namespace Campaign.Core.Configuration;
+
+/// <summary>
+/// Reads a run-log file (CSV). Required columns: run_id, q, chi1z, chi2z, omega0, level, cores, cluster,
+/// wall_hours, outcome (chi1x, chi1y, chi2x, chi2y may be omitted for aligned runs). Optional: core_hours,
+/// t_end, orbits, segments, checkpoint_gb, output_gb, started, finished (ISO 8601). Other columns are ignored.
+/// Every problem in every row is reported as "file:line:column: column = value: expected ..."; nothing is
+/// returned unless the whole file is valid.
+/// </summary>
+public static class RunLogReader
+{
+    /// <summary>Columns every run-log file must have.</summary>
+    public static readonly string[] Required = { "run_id", "q", "chi1z", "chi2z", "omega0", "level", "cores", "cluster", "wall_hours", "outcome" };
+
+    /// <summary>Parses and validates the file text against the known machines.</summary>
+    public static IReadOnlyList<RunLogRow> Read(string text, string source, LengthSettings settings, IReadOnlyCollection<string> knownMachines)
+    {
+        CsvTable table;
+        try
+        {
+            table = CsvTable.Parse(text, source);
+        }
+        catch (InvalidDataException e)
+        {
+            throw new InvalidInputException(new[] { e.Message });
+        }
+
+        var missing = Required.Where(c => !table.Has(c)).ToList();
+        if (missing.Count > 0)
+        {
+            throw new InvalidInputException(missing.Select(c => $"{source}:1:1: column '{c}' is missing: expected the columns {string.Join(", ", Required)}").ToList());
+        }
+
+        var problems = new List<string>();
+        var logs = new List<RunLogRow>();
+        var extraColumns = table.Header.Where(c => !KnownColumns.Contains(c)).ToList();
+        var ids = new Dictionary<string, int>(StringComparer.Ordinal);
+        var known = string.Join(", ", knownMachines.Order(StringComparer.Ordinal));
+        foreach (var row in table.Rows)
+        {
+            var cells = new RowCells(table, row, problems);
+            var id = cells.Text("run_id") ?? "";
+            if (id.Length == 0)
+            {
+                cells.Problem("run_id", "", "a non-empty run id");
+            }
+            else if (!ids.TryAdd(id, row.Line))
+            {
+                cells.Problem("run_id", id, $"a unique run id; it is already used on line {ids[id].ToString(CultureInfo.InvariantCulture)}");
+            }
+
+            var draft = new BinaryConfigurationDraft
+            {
+                Name = id,
+                Q = cells.Number("q"),
+                Chi1X = cells.Number("chi1x") ?? 0,
+                Chi1Y = cells.Number("chi1y") ?? 0,
+                Chi1Z = cells.Number("chi1z") ?? 0,
+                Chi2X = cells.Number("chi2x") ?? 0,
+                Chi2Y = cells.Number("chi2y") ?? 0,
+                Chi2Z = cells.Number("chi2z") ?? 0,
+                Omega0 = cells.Number("omega0"),
+            };
+            foreach (var problem in draft.Validate(settings))
+            {
+                var column = problem.Field switch { "|chi1|" => "chi1z", "|chi2|" => "chi2z", _ => problem.Field };
+                if (!cells.HasProblem(column))
+                {
+                    cells.Problem(column, problem.Value, problem.Expected, problem.Field);
+                }
+            }
+
+            var level = Bounded(cells, "level", cells.Integer("level"), 0, RunSpec.MaximumLevel, required: true);
+            var cores = Bounded(cells, "cores", cells.Integer("cores"), 1, RunSpec.MaximumCores, required: true);
+            var machine = cells.Text("cluster") ?? "";
+            if (!knownMachines.Contains(machine))
+            {
+                cells.Problem("cluster", machine, $"a machine with a profile: {known}");
+            }
+
+            var wall = Positive(cells, "wall_hours", 1e7, required: true);
+            var outcome = (cells.Text("outcome") ?? "") switch
+            {
+                "completed" => RunOutcome.Completed,
+                "failed" => RunOutcome.Failed,
+                "partial" => RunOutcome.Partial,
+                var other => Wrong(cells, "outcome", other),
+            };
+            var coreHours = Positive(cells, "core_hours", 1e12);
+            var tEnd = Positive(cells, "t_end", 1e9);
+            var orbits = Positive(cells, "orbits", 1e5);
+            var segments = Bounded(cells, "segments", cells.Integer("segments"), 1, 1_000_000, required: false);
+            var checkpoint = Positive(cells, "checkpoint_gb", 1e7);
+            var output = Positive(cells, "output_gb", 1e9);
+            var started = Timestamp(cells, "started");
+            var finished = Timestamp(cells, "finished");
+            if (started is { } s && finished is { } f && f < s)
+            {
+                cells.Problem("finished", cells.Text("finished")!, "a time after started");
+            }
+
+            if (problems.Count > 0)
+            {
+                continue;
+            }
+
+            var log = new RunLog(id, draft.BuildConfiguration(settings), (int)level!.Value, (int)cores!.Value, machine, wall!.Value, outcome!.Value,
+                coreHours, tEnd, orbits, segments is null ? null : (int)segments.Value, checkpoint, output, started, finished);
+            logs.Add(new RunLogRow(row.Line, log, extraColumns.ToDictionary(c => c, c => cells.Text(c) ?? "")));
+        }
+
+        if (problems.Count > 0)
+        {
+            throw new InvalidInputException(problems);
+        }
+
+        return logs;
+    }
+
+    /// <summary>Every column the reader understands; others are kept as extras.</summary>
+    public static readonly string[] KnownColumns =
+    {
+        "run_id", "q", "chi1x", "chi1y", "chi1z", "chi2x", "chi2y", "chi2z", "omega0", "level", "cores", "cluster", "wall_hours",
+        "outcome", "core_hours", "t_end", "orbits", "segments", "checkpoint_gb", "output_gb", "started", "finished",
+    };
+
+    private static RunOutcome? Wrong(RowCells cells, string column, string value)
+    {
+        cells.Problem(column, value, "completed, failed or partial");
+        return null;
+    }
+
+    private static long? Bounded(RowCells cells, string column, long? value, long min, long max, bool required)
+    {
+        if (value is null)
+        {
+            if (required && !cells.HasProblem(column))
+            {
+                cells.Problem(column, "(missing)", $"an integer from {min.ToString(CultureInfo.InvariantCulture)} to {max.ToString(CultureInfo.InvariantCulture)}");
+            }
+
+            return null;
+        }
+
+        if (value < min || value > max)
+        {
+            cells.Problem(column, cells.Text(column)!, $"an integer from {min.ToString(CultureInfo.InvariantCulture)} to {max.ToString(CultureInfo.InvariantCulture)}");
+            return null;
+        }
+
+        return value;
+    }
+
+    private static double? Positive(RowCells cells, string column, double max, bool required = false)
+    {
+        var value = cells.Number(column);
+        if (value is null)
+        {
+            if (required && !cells.HasProblem(column))
+            {
+                cells.Problem(column, "(missing)", $"a number greater than 0 and at most {FieldProblem.Show(max)}");
+            }
+
+            return null;
+        }
+
+        if (!(value > 0 && value <= max))
+        {
+            cells.Problem(column, cells.Text(column)!, $"a number greater than 0 and at most {FieldProblem.Show(max)}");
+            return null;
+        }
+
+        return value;
+    }
+
+    private static DateTimeOffset? Timestamp(RowCells cells, string column)
+    {
+        var text = cells.Text(column);
+        if (string.IsNullOrEmpty(text))
+        {
+            return null;
+        }
+
+        if (!DateTimeOffset.TryParse(text, CultureInfo.InvariantCulture, DateTimeStyles.AssumeUniversal | DateTimeStyles.AdjustToUniversal, out var value)
+            || !(text.Length >= 10 && text[4] == '-' && text[7] == '-'))
+        {
+            cells.Problem(column, text, "an ISO 8601 date or time, e.g. 2026-03-14 or 2026-03-14T09:30:00Z");
+            return null;
+        }
+
+        return value;
+    }
+}
+
+/// <summary>One valid row of a run-log file: its line, the run, and the extra columns kept as they were.</summary>
+public sealed record RunLogRow(int Line, RunLog Log, IReadOnlyDictionary<string, string> Extra);

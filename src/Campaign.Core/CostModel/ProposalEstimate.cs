@@ -1,0 +1,48 @@
+namespace Campaign.Core.CostModel;
+
+/// <summary>One simulation of a proposal (a configuration at one level, or its eccentricity trials).</summary>
+/// <param name="Id">Configuration id.</param>
+/// <param name="Level">Resolution level.</param>
+/// <param name="Kind">"run", or "ecc" for the eccentricity-reduction trials of the configuration.</param>
+/// <param name="Machine">Machine.</param>
+/// <param name="Cores">Cores per job.</param>
+/// <param name="LengthM">Simulated length (M) of the run (of all trials together for "ecc").</param>
+/// <param name="Median">Median core-hours consumed.</param>
+/// <param name="Mean">Mean core-hours consumed.</param>
+/// <param name="Low">Lower end of the interval.</param>
+/// <param name="High">Upper end of the interval.</param>
+/// <param name="WallHours">Wall-clock hours at its cores (median).</param>
+/// <param name="Segments">Chained jobs needed under the wall-time limit less the checkpoint margin (median).</param>
+/// <param name="NodeHours">Wall hours x nodes (median).</param>
+/// <param name="ChargedCoreHours">Core-hours the site charges under its policy (median).</param>
+/// <param name="ChargedHigh">Charged core-hours at the upper end of the interval.</param>
+/// <param name="CheckpointGb">Size of one checkpoint.</param>
+/// <param name="OutputGb">Output kept.</param>
+/// <param name="Source">"model", or "given" when the candidate file gave core_hours.</param>
+/// <param name="Extrapolation">Why this is an extrapolation of the logs (empty if it is not).</param>
+public sealed record EstimateRow(
+    string Id,
+    int Level,
+    string Kind,
+    string Machine,
+    int Cores,
+    double LengthM,
+    double Median,
+    double Mean,
+    double Low,
+    double High,
+    double WallHours,
+    int Segments,
+    double NodeHours,
+    double ChargedCoreHours,
+    double ChargedHigh,
+    double CheckpointGb,
+    double OutputGb,
+    string Source,
+    IReadOnlyList<string> Extrapolation);
+
+/// <summary>A total with its interval from the Monte Carlo over parameters and residuals.</summary>
+public sealed record EstimateTotal(double Median, double Mean, double Low, double High, double ChargedMedian, double ChargedLow, double ChargedHigh);
+
+/// <summary>Estimates for every simulation of a proposal, with totals overall and per machine.</summary>
+public sealed record ProposalEstimate(IReadOnlyList<EstimateRow> Runs, EstimateTotal Total, IReadOnlyDictionary<string, EstimateTotal> ByMachine, double Interval, int Samples, int Seed);

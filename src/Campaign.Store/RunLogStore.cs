@@ -1,0 +1,107 @@
+using System.Globalization;
+using System.Text.Json;
+using Campaign.Core.Configuration;
+using Campaign.Core.Domain;
+using Dapper;
+using Microsoft.Data.Sqlite;
+
+namespace Campaign.Store;
+
+/// <summary>What an import did.</summary>
+public sealed record ImportResult(int Added, int Replaced);
+
+/// <summary>The run_logs table: import in one transaction, read back as domain values.</summary>
+public static class RunLogStore
+{
+    /// <summary>
+    /// Imports rows in one transaction. A run id already in the workspace is an error (listing every such row)
+    /// unless <paramref name="replace"/>; then the stored run is replaced.
+    /// </summary>
+    public static ImportResult Import(SqliteConnection connection, IReadOnlyList<RunLogRow> rows, string source, bool replace, TimeProvider time)
+    {
+        var existing = connection.Query<string>("SELECT run_id FROM run_logs").ToHashSet(StringComparer.Ordinal);
+        var clashes = rows.Where(r => existing.Contains(r.Log.RunId)).ToList();
+        if (clashes.Count > 0 && !replace)
+        {
+            throw new InvalidInputException(clashes.Select(r =>
+                $"{source}:{r.Line.ToString(CultureInfo.InvariantCulture)}:1: run_id = {r.Log.RunId}: expected a run id not yet in the workspace (use --replace to overwrite stored runs)").ToList());
+        }
+
+        var now = time.GetUtcNow().ToString("O", CultureInfo.InvariantCulture);
+        using var transaction = connection.BeginTransaction();
+        foreach (var row in rows)
+        {
+            var log = row.Log;
+            var c = log.Configuration;
+            connection.Execute(
+                """
+                INSERT INTO run_logs (run_id, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0, level, cores, machine, wall_hours, outcome,
+                    core_hours, t_end, orbits, segments, checkpoint_gb, output_gb, started, finished, extra_json, source, imported_at)
+                VALUES (@RunId, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0, @Level, @Cores, @Machine, @WallHours, @Outcome,
+                    @CoreHours, @TEnd, @Orbits, @Segments, @CheckpointGb, @OutputGb, @Started, @Finished, @Extra, @Source, @Now)
+                ON CONFLICT (run_id) DO UPDATE SET
+                    q = excluded.q, chi1x = excluded.chi1x, chi1y = excluded.chi1y, chi1z = excluded.chi1z, chi2x = excluded.chi2x,
+                    chi2y = excluded.chi2y, chi2z = excluded.chi2z, omega0 = excluded.omega0, level = excluded.level, cores = excluded.cores,
+                    machine = excluded.machine, wall_hours = excluded.wall_hours, outcome = excluded.outcome, core_hours = excluded.core_hours,
+                    t_end = excluded.t_end, orbits = excluded.orbits, segments = excluded.segments, checkpoint_gb = excluded.checkpoint_gb,
+                    output_gb = excluded.output_gb, started = excluded.started, finished = excluded.finished, extra_json = excluded.extra_json,
+                    source = excluded.source, imported_at = excluded.imported_at
+                """,
+                new
+                {
+                    log.RunId,
+                    Q = c.Q.Value,
+                    Chi1x = c.Chi1.X,
+                    Chi1y = c.Chi1.Y,
+                    Chi1z = c.Chi1.Z,
+                    Chi2x = c.Chi2.X,
+                    Chi2y = c.Chi2.Y,
+                    Chi2z = c.Chi2.Z,
+                    c.Omega0,
+                    log.Level,
+                    log.Cores,
+                    log.Machine,
+                    log.WallHours,
+                    Outcome = log.Outcome.ToString().ToLowerInvariant(),
+                    log.CoreHours,
+                    log.TEnd,
+                    log.Orbits,
+                    log.Segments,
+                    log.CheckpointGb,
+                    log.OutputGb,
+                    Started = log.Started?.ToString("O", CultureInfo.InvariantCulture),
+                    Finished = log.Finished?.ToString("O", CultureInfo.InvariantCulture),
+                    Extra = JsonSerializer.Serialize(row.Extra),
+                    Source = source,
+                    Now = now,
+                },
+                transaction);
+        }
+
+        var result = new ImportResult(rows.Count - clashes.Count, clashes.Count);
+        EventLog.Append(connection, transaction, time, "logs.import", null, $"{result.Added} runs added, {result.Replaced} replaced from {source}");
+        transaction.Commit();
+        return result;
+    }
+
+    /// <summary>Every stored run, ordered by id.</summary>
+    public static IReadOnlyList<RunLog> All(SqliteConnection connection) =>
+        connection.Query<Row>("SELECT * FROM run_logs ORDER BY run_id").Select(ToLog).ToList();
+
+    private static RunLog ToLog(Row r)
+    {
+        var configuration = new BinaryConfiguration(MassRatio.From(r.q), Spin.From(r.chi1x, r.chi1y, r.chi1z, "chi1"), Spin.From(r.chi2x, r.chi2y, r.chi2z, "chi2"), r.omega0);
+        var outcome = Enum.Parse<RunOutcome>(r.outcome, ignoreCase: true);
+        return new RunLog(r.run_id, configuration, (int)r.level, (int)r.cores, r.machine, r.wall_hours, outcome, r.core_hours, r.t_end, r.orbits,
+            r.segments is null ? null : (int)r.segments.Value, r.checkpoint_gb, r.output_gb, Parse(r.started), Parse(r.finished));
+    }
+
+    private static DateTimeOffset? Parse(string? text) => text is null ? null : DateTimeOffset.Parse(text, CultureInfo.InvariantCulture);
+
+#pragma warning disable IDE1006, SA1300 // column names as SQLite stores them
+    private sealed record Row(
+        string run_id, double q, double chi1x, double chi1y, double chi1z, double chi2x, double chi2y, double chi2z, double omega0, long level,
+        long cores, string machine, double wall_hours, string outcome, double? core_hours, double? t_end, double? orbits, long? segments,
+        double? checkpoint_gb, double? output_gb, string? started, string? finished, string extra_json, string source, string imported_at);
+#pragma warning restore IDE1006, SA1300
+}
