@@ -23,15 +23,7 @@ public static class CandidateReader
     /// <summary>Parses and validates the file text.</summary>
     public static IReadOnlyList<Candidate> Read(string text, string source, LengthSettings settings, RunDefaults defaults, string defaultMachine, IReadOnlyCollection<string> knownMachines)
     {
-        CsvTable table;
-        try
-        {
-            table = CsvTable.Parse(text, source);
-        }
-        catch (InvalidDataException e)
-        {
-            throw new InvalidInputException(new[] { e.Message });
-        }
+        var table = RowCells.Parse(text, source);
 
         var problems = new List<string>();
         foreach (var required in new[] { "id", "q" })
@@ -106,14 +98,7 @@ public static class CandidateReader
                 cells.Problem("core_hours", cells.Text("core_hours") ?? "", "a cost in core-hours greater than 0 and at most 1e12");
             }
 
-            foreach (var problem in draft.Validate(settings, includeRunFields: true))
-            {
-                var column = ColumnOf(problem.Field);
-                if (!cells.HasProblem(column))
-                {
-                    cells.Problem(column, problem.Value, problem.Expected, problem.Field);
-                }
-            }
+            cells.Report(draft.Validate(settings, includeRunFields: true));
 
             if (problems.Count > 0)
             {
@@ -140,12 +125,4 @@ public static class CandidateReader
 
         return candidates;
     }
-
-    private static string ColumnOf(string field) => field switch
-    {
-        "|chi1|" => "chi1z",
-        "|chi2|" => "chi2z",
-        "level" => "levels",
-        _ => field,
-    };
 }

@@ -110,6 +110,41 @@ public sealed class RowCells
         return levels;
     }
 
+    /// <summary>
+    /// Reports the problems of a configuration draft at their columns ("|chi1|" at chi1z, "level" at levels),
+    /// skipping columns whose cell was already reported unreadable.
+    /// </summary>
+    public void Report(IEnumerable<Domain.FieldProblem> problems)
+    {
+        foreach (var problem in problems)
+        {
+            var column = problem.Field switch
+            {
+                "|chi1|" => "chi1z",
+                "|chi2|" => "chi2z",
+                "level" => "levels",
+                _ => problem.Field,
+            };
+            if (!HasProblem(column))
+            {
+                Problem(column, problem.Value, problem.Expected, problem.Field);
+            }
+        }
+    }
+
+    /// <summary>Parses CSV text, turning a malformed file into <see cref="Domain.InvalidInputException"/> (exit code 2).</summary>
+    public static CsvTable Parse(string text, string source)
+    {
+        try
+        {
+            return CsvTable.Parse(text, source);
+        }
+        catch (InvalidDataException e)
+        {
+            throw new Domain.InvalidInputException(new[] { e.Message });
+        }
+    }
+
     /// <summary>True when a problem was already reported for <paramref name="column"/> in this row.</summary>
     public bool HasProblem(string column) => _badColumns.Contains(column);
 

@@ -20,15 +20,7 @@ public static class RunLogReader
     /// <summary>Parses and validates the file text against the known machines.</summary>
     public static IReadOnlyList<RunLogRow> Read(string text, string source, LengthSettings settings, IReadOnlyCollection<string> knownMachines)
     {
-        CsvTable table;
-        try
-        {
-            table = CsvTable.Parse(text, source);
-        }
-        catch (InvalidDataException e)
-        {
-            throw new InvalidInputException(new[] { e.Message });
-        }
+        var table = RowCells.Parse(text, source);
 
         var missing = Required.Where(c => !table.Has(c)).ToList();
         if (missing.Count > 0)
@@ -66,14 +58,7 @@ public static class RunLogReader
                 Chi2Z = cells.Number("chi2z") ?? 0,
                 Omega0 = cells.Number("omega0"),
             };
-            foreach (var problem in draft.Validate(settings))
-            {
-                var column = problem.Field switch { "|chi1|" => "chi1z", "|chi2|" => "chi2z", _ => problem.Field };
-                if (!cells.HasProblem(column))
-                {
-                    cells.Problem(column, problem.Value, problem.Expected, problem.Field);
-                }
-            }
+            cells.Report(draft.Validate(settings));
 
             var level = Bounded(cells, "level", cells.Integer("level"), 0, RunSpec.MaximumLevel, required: true);
             var cores = Bounded(cells, "cores", cells.Integer("cores"), 1, RunSpec.MaximumCores, required: true);
