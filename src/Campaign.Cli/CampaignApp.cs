@@ -67,6 +67,7 @@ public sealed class CampaignApp
         root.Add(LogsCommand.Build(this));
         root.Add(ModelCommand.Build(this));
         root.Add(EstimateCommand.Build(this));
+        root.Add(SelectCommand.Build(this));
         root.Add(DemoCommand.Build(this));
         return root;
     }

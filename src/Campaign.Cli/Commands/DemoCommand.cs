@@ -3,6 +3,7 @@ using System.Globalization;
 using System.Text.Json;
 using Campaign.Cli.Output;
 using Campaign.Core.CostModel;
+using Campaign.Core.Selection;
 using Campaign.Store;
 
 namespace Campaign.Cli.Commands;
@@ -10,7 +11,8 @@ namespace Campaign.Cli.Commands;
 /// <summary>
 /// campaign demo [DIR]: the quick start. Creates a workspace of the invented demo group (config, machine
 /// profiles, run logs, candidate configurations) and runs the whole job that exists so far on it: run lengths,
-/// log import, cost-model fit and the proposal estimate. Later steps of the demo grow here as the tool grows.
+/// log import, cost-model fit, the proposal estimate and the selection saved as the plan. Later steps of the
+/// demo grow here as the tool grows.
 /// </summary>
 internal static class DemoCommand
 {
@@ -70,6 +72,10 @@ internal static class DemoCommand
             EstimateCommand.Write(Step("estimate"), workspace, candidatesPath, "candidates.csv", new EstimateOptions { EccentricityTrials = 2 }, "table");
             o.WriteLine();
 
+            o.WriteLine("== 5. Choose what to run within the allocations (coverage of the parameter space, costs at the 80th percentile) and save the plan");
+            SelectCommand.Run(Step("select"), workspace, candidatesPath, "candidates.csv", new SelectOptions(SelectionObjective.Coverage, null, 0.8, Array.Empty<string>(), null, 2, 1500, 10, Save: true));
+            o.WriteLine();
+
             if (context.Json)
             {
                 Json.Write(context.Out, new
@@ -84,6 +90,7 @@ internal static class DemoCommand
             o.WriteLine($"  ./campaign --dir {target} check");
             o.WriteLine($"  ./campaign --dir {target} model show");
             o.WriteLine($"  ./campaign --dir {target} estimate {candidatesPath} --format md");
+            o.WriteLine($"  ./campaign --dir {target} select {candidatesPath} --objective value --budget 2000000");
             o.WriteLine($"  ./campaign --dir {target} length --q 4 --chi1z 0.5 --omega0 0.016");
             return ExitCodes.Ok;
         });

@@ -7,7 +7,8 @@ namespace Campaign.Core.Configuration;
 
 /// <summary>
 /// Reads a candidate file (CSV): id, q, chi1x..chi2z (x and y may be omitted), omega0 or orbits, levels
-/// ("2;3;4"), cores, cluster, and optional value, must, core_hours. Missing levels, cores and cluster come
+/// ("2;3;4"), cores, cluster (one machine, or several separated by ';' that the configuration may run on),
+/// and optional value, must, core_hours. Missing levels, cores and cluster come
 /// from the workspace defaults. Every problem in every row is reported as "file:line:column: ..." and
 /// nothing is returned unless the whole file is valid.
 /// </summary>
@@ -75,14 +76,15 @@ public static class CandidateReader
             };
             var levels = cells.Levels("levels");
             draft.Levels.AddRange(levels ?? defaults.Levels.Select(l => (long)l));
-            var machine = cells.Text("cluster");
-            if (string.IsNullOrEmpty(machine))
+            var machines = (cells.Text("cluster") ?? "").Split(';', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries).Distinct().ToList();
+            if (machines.Count == 0)
             {
-                machine = defaultMachine;
+                machines.Add(defaultMachine);
             }
-            else if (!knownMachines.Contains(machine))
+
+            foreach (var unknown in machines.Where(m => !knownMachines.Contains(m)))
             {
-                cells.Problem("cluster", machine, "a machine with a profile: " + string.Join(", ", knownMachines.Order(StringComparer.Ordinal)));
+                cells.Problem("cluster", cells.Text("cluster") ?? "", $"machines with a profile, separated by ';': {string.Join(", ", knownMachines.Order(StringComparer.Ordinal))} (\"{unknown}\" has none)");
             }
 
             var value = cells.Number("value") ?? 1.0;
@@ -107,7 +109,7 @@ public static class CandidateReader
 
             try
             {
-                candidates.Add(new Candidate(id!, draft.BuildRunSpec(settings), machine, value, must, coreHours));
+                candidates.Add(new Candidate(id!, draft.BuildRunSpec(settings), machines[0], value, must, coreHours, machines));
             }
             catch (InvalidInputException e)
             {

@@ -17,7 +17,7 @@ public static class WorkspaceConfigReader
 
         var problems = new List<string>();
         var top = new TomlFields(root, source, problems);
-        top.RejectUnknown("campaign", "allocation", "defaults", "length");
+        top.RejectUnknown("campaign", "allocation", "defaults", "length", "selection");
         var known = knownMachines.Count == 0 ? "(no machine profiles found)" : string.Join(", ", knownMachines.Order(StringComparer.Ordinal));
 
         var campaign = top.SubTable("campaign", required: true);
@@ -99,12 +99,13 @@ public static class WorkspaceConfigReader
         }
 
         var length = ReadLength(top.SubTable("length", false), source, problems);
+        var space = ReadSelection(top.SubTable("selection", false), source, problems);
         if (problems.Count > 0)
         {
             throw new InvalidInputException(problems);
         }
 
-        return new WorkspaceConfig(name, machines, defaultMachine, allocations, defaults, length);
+        return new WorkspaceConfig(name, machines, defaultMachine, allocations, defaults, length, space);
     }
 
     private static Allocation? ReadAllocation(TomlTable table, string source, List<string> problems, IReadOnlyList<string> machines)
@@ -167,6 +168,31 @@ public static class WorkspaceConfigReader
         }
 
         return new Allocation(machine!, amount!.Value, unit == "node-hours" ? AllocationUnit.NodeHours : AllocationUnit.CoreHours, start!.Value, end!.Value, windows);
+    }
+
+    private static Selection.ParameterSpace ReadSelection(TomlTable? table, string source, List<string> problems)
+    {
+        var space = Selection.ParameterSpace.Default;
+        if (table is null)
+        {
+            return space;
+        }
+
+        var fields = new TomlFields(table, source, problems);
+        string[] keys = { "ln_q_scale", "chi1z_scale", "chi2z_scale", "chi1_inplane_scale", "chi2_inplane_scale" };
+        fields.RejectUnknown(keys);
+        space = new Selection.ParameterSpace(
+            fields.FiniteNumber(keys[0]) ?? space.LnQScale,
+            fields.FiniteNumber(keys[1]) ?? space.Chi1zScale,
+            fields.FiniteNumber(keys[2]) ?? space.Chi2zScale,
+            fields.FiniteNumber(keys[3]) ?? space.Chi1InPlaneScale,
+            fields.FiniteNumber(keys[4]) ?? space.Chi2InPlaneScale);
+        foreach (var problem in space.Validate())
+        {
+            fields.Problem(problem.Field, problem.Expected);
+        }
+
+        return space;
     }
 
     private static LengthSettings ReadLength(TomlTable? table, string source, List<string> problems)

@@ -20,6 +20,9 @@ namespace Campaign.Core.CostModel;
 /// <param name="OutputGb">Output kept.</param>
 /// <param name="Source">"model", or "given" when the candidate file gave core_hours.</param>
 /// <param name="Extrapolation">Why this is an extrapolation of the logs (empty if it is not).</param>
+/// <param name="LogStandardError">Standard error of ln(core-hours) of one run (0 for given costs).</param>
+/// <param name="DegreesOfFreedom">Degrees of freedom of the t quantiles (infinite for given costs).</param>
+/// <param name="Runs">How many runs the row stands for (the eccentricity trials of a configuration are one row).</param>
 public sealed record EstimateRow(
     string Id,
     int Level,
@@ -39,7 +42,26 @@ public sealed record EstimateRow(
     double CheckpointGb,
     double OutputGb,
     string Source,
-    IReadOnlyList<string> Extrapolation);
+    IReadOnlyList<string> Extrapolation,
+    double LogStandardError,
+    double DegreesOfFreedom,
+    int Runs)
+{
+    /// <summary>
+    /// Charged core-hours at cost quantile <paramref name="p"/>: Runs x exp(ln(median/Runs) + t_p se) x the
+    /// machine's charge ratio (charged per consumed core-hour).
+    /// </summary>
+    public double ChargedAt(double p)
+    {
+        if (LogStandardError == 0 || p == 0.5)
+        {
+            return ChargedCoreHours;
+        }
+
+        var t = CostModel.PredictionInterval.StudentTQuantile(p, DegreesOfFreedom);
+        return ChargedCoreHours * Math.Exp(t * LogStandardError);
+    }
+}
 
 /// <summary>A total with its interval from the Monte Carlo over parameters and residuals.</summary>
 public sealed record EstimateTotal(double Median, double Mean, double Low, double High, double ChargedMedian, double ChargedLow, double ChargedHigh);

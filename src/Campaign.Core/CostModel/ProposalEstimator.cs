@@ -50,13 +50,13 @@ public static class ProposalEstimator
                 if (candidate.CoreHours is { } given)
                 {
                     var share = given * shares[k] / shares.Sum();
-                    rows.Add(Row(candidate, level, "run", machine, length, share, share, share, share, storage, options, "given", Array.Empty<string>()));
+                    rows.Add(Row(candidate, level, "run", machine, length, share, share, share, share, storage, options, "given", Array.Empty<string>(), 0, double.PositiveInfinity));
                     draws.Add(new DrawSpec(null, Math.Log(share), machine, candidate.Spec.Cores));
                 }
                 else
                 {
                     var p = predictions![k];
-                    rows.Add(Row(candidate, level, "run", machine, length, p.Median, p.Mean, p.Low, p.High, storage, options, "model", p.Extrapolation));
+                    rows.Add(Row(candidate, level, "run", machine, length, p.Median, p.Mean, p.Low, p.High, storage, options, "model", p.Extrapolation, p.LogStandardError, model!.DegreesOfFreedom));
                     draws.Add(new DrawSpec(model!.Features.Row(CostObservation.For(candidate.Id, config, level, candidate.Spec.Cores, machine, length)), -Math.Log(machine.RelativeSpeed), machine, candidate.Spec.Cores));
                 }
             }
@@ -66,7 +66,7 @@ public static class ProposalEstimator
                 var observation = CostObservation.For(candidate.Id, config, levels[0], candidate.Spec.Cores, machine, options.EccentricityTrialLength);
                 var p = model.Predict(observation, options.Interval);
                 var n = options.EccentricityTrials;
-                rows.Add(Row(candidate, levels[0], "ecc", machine, n * options.EccentricityTrialLength, n * p.Median, n * p.Mean, n * p.Low, n * p.High, storage, options, "model", p.Extrapolation, perRunLength: options.EccentricityTrialLength, runs: n));
+                rows.Add(Row(candidate, levels[0], "ecc", machine, n * options.EccentricityTrialLength, n * p.Median, n * p.Mean, n * p.Low, n * p.High, storage, options, "model", p.Extrapolation, p.LogStandardError, model.DegreesOfFreedom, perRunLength: options.EccentricityTrialLength, runs: n));
                 var x = model.Features.Row(observation);
                 for (var i = 0; i < n; i++)
                 {
@@ -103,7 +103,7 @@ public static class ProposalEstimator
     }
 
     private static EstimateRow Row(Candidate c, int level, string kind, MachineProfile machine, double length, double median, double mean, double low, double high,
-        StorageModel storage, EstimateOptions options, string source, IReadOnlyList<string> extrapolation, double? perRunLength = null, int runs = 1)
+        StorageModel storage, EstimateOptions options, string source, IReadOnlyList<string> extrapolation, double logSe, double dof, double? perRunLength = null, int runs = 1)
     {
         var cores = c.Spec.Cores;
         var wall = median / cores;
@@ -129,7 +129,10 @@ public static class ProposalEstimator
             storage.CheckpointGb(level),
             runs * storage.OutputGb(level, perRunLength ?? length),
             source,
-            extrapolation);
+            extrapolation,
+            logSe,
+            dof,
+            runs);
     }
 
     /// <summary>One simulation in the Monte Carlo: its feature row (null for a fixed given cost), offset and machine.</summary>

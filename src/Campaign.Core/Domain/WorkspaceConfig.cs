@@ -17,4 +17,5 @@ public sealed record WorkspaceConfig(
     string DefaultMachine,
     IReadOnlyList<Allocation> Allocations,
     RunDefaults Defaults,
-    LengthSettings Length);
+    LengthSettings Length,
+    Selection.ParameterSpace Selection);

@@ -59,6 +59,40 @@ public static class Migrations
                 model_json  TEXT NOT NULL
             ) STRICT;
             """),
+        new Migration(3, "plans", """
+            CREATE TABLE plans (
+                id          INTEGER PRIMARY KEY,
+                created_at  TEXT NOT NULL,
+                objective   TEXT NOT NULL,
+                quantile    REAL NOT NULL,
+                value       REAL NOT NULL,
+                upper_bound REAL NOT NULL,
+                method      TEXT NOT NULL,
+                pools_json  TEXT NOT NULL,
+                source      TEXT NOT NULL
+            ) STRICT;
+
+            CREATE TABLE plan_runs (
+                plan_id     INTEGER NOT NULL REFERENCES plans (id),
+                config_id   TEXT NOT NULL,
+                machine     TEXT NOT NULL,
+                q           REAL NOT NULL,
+                chi1x       REAL NOT NULL,
+                chi1y       REAL NOT NULL,
+                chi1z       REAL NOT NULL,
+                chi2x       REAL NOT NULL,
+                chi2y       REAL NOT NULL,
+                chi2z       REAL NOT NULL,
+                omega0      REAL NOT NULL,
+                levels      TEXT NOT NULL,
+                cores       INTEGER NOT NULL,
+                cost        REAL NOT NULL,
+                median      REAL NOT NULL,
+                high        REAL NOT NULL,
+                status      TEXT NOT NULL DEFAULT 'planned',
+                PRIMARY KEY (plan_id, config_id)
+            ) STRICT;
+            """),
     };
 
     /// <summary>Schema version this build writes.</summary>

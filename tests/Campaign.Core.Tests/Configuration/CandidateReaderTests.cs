@@ -40,7 +40,7 @@ public class CandidateReaderTests
                 "c.csv:3:3: chi1z = 1.2: expected a finite number from -1 to 1",
                 "c.csv:4:4: omega0 = abc: expected a finite number written with '.' as the decimal point",
                 "c.csv:5:5: levels = 1;x: expected resolution levels as integers separated by ';', e.g. 2;3;4",
-                "c.csv:6:7: cluster = gamma: expected a machine with a profile: alpha, beta",
+                "c.csv:6:7: cluster = gamma: expected machines with a profile, separated by ';': alpha, beta (\"gamma\" has none)",
                 "c.csv:7:1: id = a: expected a unique id; it is already used on line 2",
                 "c.csv:7:6: cores = -3: expected an integer from 1 to 10000000",
             },

@@ -1,0 +1,193 @@
+using System.CommandLine;
+using Campaign.Cli.Output;
+using Campaign.Core.Configuration;
+using Campaign.Core.CostModel;
+using Campaign.Core.Domain;
+using Campaign.Core.Selection;
+using Campaign.Store;
+
+namespace Campaign.Cli.Commands;
+
+/// <summary>campaign select FILE: choose the configurations to run within the budget(s).</summary>
+internal static class SelectCommand
+{
+    public static Command Build(CampaignApp app)
+    {
+        var file = new Argument<string>("FILE") { Description = "Candidate file (CSV; the same as for estimate)" };
+        var objective = new Option<string>("--objective") { Description = "coverage (default): cover the parameter space; value: maximise the sum of the value column", DefaultValueFactory = _ => "coverage" };
+        objective.AcceptOnlyFromAmong("coverage", "value");
+        var budget = new Option<double?>("--budget") { Description = "One budget in charged core-hours for all machines (default: the allocations in campaign.toml, one per machine)", HelpName = "CORE_HOURS" };
+        var quantile = new Option<double>("--quantile") { Description = "Cost quantile charged against the budget (default 0.5; 0.8 or 0.9 for a risk-averse plan)", DefaultValueFactory = _ => 0.5 };
+        var exclude = new Option<string[]>("--exclude") { Description = "Candidate ids never to choose (repeat, or separate with commas)", AllowMultipleArgumentsPerToken = true, HelpName = "ID" };
+        var maxRuns = new Option<int?>("--max-runs") { Description = "Most configurations to choose", HelpName = "N" };
+        var trials = new Option<int>("--ecc-trials") { Description = "Eccentricity-reduction trial runs per configuration, included in its cost (default 0)" };
+        var trialLength = new Option<double>("--ecc-length") { Description = "Simulated length of each trial run in M (default 1500)", DefaultValueFactory = _ => 1500 };
+        var leftOut = new Option<int>("--left-out") { Description = "How many of the best left-out candidates to list (default 10)", DefaultValueFactory = _ => 10 };
+        var save = new Option<bool>("--save") { Description = "Store the selection as the workspace's plan (a new version; started runs are always kept)" };
+        var command = new Command("select", "Choose the configurations that cover the parameter space best (or give the most value) within the budget")
+        {
+            file, objective, budget, quantile, exclude, maxRuns, trials, trialLength, leftOut, save,
+        };
+        app.Bind(command, context =>
+        {
+            var shown = context.Parse.GetValue(file)!;
+            var path = app.Resolve(shown);
+            if (!File.Exists(path))
+            {
+                throw new InvalidInputException(new[] { $"{shown}: no such file: expected a candidate file (CSV)" });
+            }
+
+            using var workspace = Workspace.Open(context.Workspace, context.Time);
+            var options = new SelectOptions(
+                context.Parse.GetValue(objective) == "value" ? SelectionObjective.Value : SelectionObjective.Coverage,
+                context.Parse.GetValue(budget),
+                context.Parse.GetValue(quantile),
+                (context.Parse.GetValue(exclude) ?? Array.Empty<string>()).SelectMany(e => e.Split(',', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries)).ToList(),
+                context.Parse.GetValue(maxRuns),
+                context.Parse.GetValue(trials),
+                context.Parse.GetValue(trialLength),
+                Math.Max(0, context.Parse.GetValue(leftOut)),
+                context.Parse.GetValue(save));
+            Run(context, workspace, path, shown, options);
+            return ExitCodes.Ok;
+        });
+        return command;
+    }
+
+    /// <summary>Selects from a candidate file in a workspace, optionally saves the plan, and writes the result.</summary>
+    public static void Run(CommandContext context, Workspace workspace, string path, string shown, SelectOptions options)
+    {
+        var config = workspace.Config;
+        var candidates = CandidateReader.Read(File.ReadAllText(path), shown, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
+        var logs = RunLogStore.All(workspace.Connection);
+        var training = TrainingSet.From(logs, workspace.Machines, config.Length);
+        var existing = logs.Where(l => l.Outcome == RunOutcome.Completed).Select(l => l.Configuration).Distinct().ToList();
+        var plan = PlanStore.Current(workspace.Connection);
+        var started = plan?.Runs.Where(r => r.Status != PlanStore.Planned).ToList() ?? new List<PlannedRun>();
+        var forced = started.ToDictionary(r => r.ConfigId, r => r.Machine);
+        var reserved = started.Where(r => candidates.All(c => c.Id != r.ConfigId)).GroupBy(r => r.Machine).ToDictionary(g => g.Key, g => g.Sum(r => r.Cost));
+        var kind = options.Objective;
+        var request = new SelectionRequest(
+            kind,
+            options.Quantile,
+            options.Budget,
+            config.Allocations.GroupBy(a => a.Machine).ToDictionary(g => g.Key, g => g.Sum(a => a.CoreHours(workspace.Machine(a.Machine)))),
+            options.Exclude.ToHashSet(StringComparer.Ordinal),
+            options.MaxRuns,
+            forced,
+            reserved);
+        var estimateOptions = new EstimateOptions { EccentricityTrials = options.EccentricityTrials, EccentricityTrialLength = options.EccentricityTrialLength };
+        var built = SelectionBuilder.Build(candidates, workspace.Machines, CostModelStore.Latest(workspace.Connection)?.Model, StorageModel.Fit(training.Lengths), config.Length, estimateOptions, config.Selection, existing, request);
+        var result = Selector.Solve(built.Problem);
+        var report = SelectionReport.Of(built.Problem, result, options.LeftOut);
+        long? planId = null;
+        var carried = 0;
+        if (options.Save)
+        {
+            var runs = result.Chosen.Select(a =>
+            {
+                var entry = built.Entries[a.Candidate];
+                var option = built.Problem.Candidates[a.Candidate].Options[a.Option];
+                var spec = entry.Candidate.Spec;
+                return new PlannedRun(entry.Candidate.Id, option.Machine, spec.Configuration, spec.Levels, spec.Cores, option.Cost, option.Median, option.High, PlanStore.Planned);
+            }).ToList();
+            (planId, carried) = PlanStore.Save(workspace.Connection, kind.ToString().ToLowerInvariant(), request.Quantile, result, runs, report.Pools, shown, context.Time);
+        }
+
+        Write(context, kind, request, built, result, report, existing.Count, planId, carried);
+    }
+
+    private static void Write(CommandContext context, SelectionObjective kind, SelectionRequest request, BuiltSelection built, SelectionResult result, SelectionReport report, int existing, long? planId, int carried)
+    {
+        var totalCost = report.Chosen.Sum(c => c.Cost);
+        var totalBudget = report.Pools.Sum(p => p.Capacity);
+        if (context.Json)
+        {
+            Json.Write(context.Out, new
+            {
+                Objective = kind.ToString().ToLowerInvariant(),
+                Selected = report.Chosen.Select(c => c.Id),
+                Assignment = report.Chosen.ToDictionary(c => c.Id, c => c.Machine),
+                Cost = totalCost,
+                CostMedian = report.Chosen.Sum(c => c.Median),
+                CostHigh = report.Chosen.Sum(c => c.High),
+                Budget = totalBudget,
+                request.Quantile,
+                Value = result.Objective,
+                UpperBound = result.UpperBound,
+                result.Gap,
+                result.Method,
+                result.Guarantee,
+                ExistingRuns = existing,
+                Pools = report.Pools.Select(p => new { p.Name, p.Capacity, p.Used, p.Left, p.UsedMedian, p.UsedHigh }),
+                Runs = report.Chosen,
+                LeftOut = report.LeftOut.Select(l => new { l.Id, l.Machine, l.Cost, l.Gain, CostPerGain = double.IsInfinity(l.CostPerGain) ? (double?)null : l.CostPerGain, l.Reason }),
+                Dropped = built.Dropped.Select(d => new { d.Id, d.Reason }),
+                PlanId = planId,
+                CarriedOver = carried,
+            });
+            return;
+        }
+
+        var o = context.Out;
+        var what = kind == SelectionObjective.Coverage
+            ? $"coverage of the {built.Problem.Candidates.Count} candidates (with {existing} completed runs already in the workspace)"
+            : "the sum of the value column";
+        o.WriteLine($"Selection maximising {what}; costs are charged core-hours at the {Format.Fixed(request.Quantile * 100, 0)}th percentile of each configuration (all its levels).");
+        var table = new TextTable("#", "id", "machine", "cost", "median", "high", "value", kind == SelectionObjective.Coverage ? "coverage gain" : "gain", "");
+        var k = 0;
+        foreach (var c in report.Chosen)
+        {
+            table.Add(Format.Integer(++k), c.Id, c.Machine, Format.Fixed(c.Cost, 0), Format.Fixed(c.Median, 0), Format.Fixed(c.High, 0), Format.Significant(c.Value, 3), Format.Fixed(c.Gain, 4), c.Must ? "must" : "");
+        }
+
+        table.WriteTo(o);
+        o.WriteLine();
+        var pools = new TextTable("budget", "capacity", "used", "left", "used at median", "used at high");
+        foreach (var p in report.Pools)
+        {
+            pools.Add(p.Name, Format.Fixed(p.Capacity, 0), Format.Fixed(p.Used, 0), Format.Fixed(p.Left, 0), Format.Fixed(p.UsedMedian, 0), Format.Fixed(p.UsedHigh, 0));
+        }
+
+        pools.WriteTo(o);
+        o.WriteLine();
+        o.WriteLine($"Objective {Format.Fixed(result.Objective, 4)}; upper bound on the best possible {Format.Fixed(result.UpperBound, 4)}; gap {Format.Fixed(result.Gap * 100, 1)}%.");
+        o.WriteLine($"Method: {result.Method}{(result.Guarantee is > 0 and < 1 ? $" (worst-case guarantee {Format.Fixed(result.Guarantee, 3)} of the optimum)" : "")}.");
+        if (report.LeftOut.Count > 0)
+        {
+            o.WriteLine();
+            o.WriteLine("Best candidates left out:");
+            var left = new TextTable("id", "machine", "cost", "gain", "cost per unit gain", "why");
+            foreach (var l in report.LeftOut)
+            {
+                left.Add(l.Id, l.Machine, Format.Fixed(l.Cost, 0), Format.Fixed(l.Gain, 4), double.IsInfinity(l.CostPerGain) ? "-" : Format.Fixed(l.CostPerGain, 0), l.Reason);
+            }
+
+            left.WriteTo(o);
+        }
+
+        foreach (var (id, reason) in built.Dropped)
+        {
+            o.WriteLine($"Not considered: {id}: {reason}.");
+        }
+
+        if (planId is not null)
+        {
+            o.WriteLine($"Saved as plan {planId}{(carried > 0 ? $" ({carried} started runs carried over from the previous plan)" : "")}.");
+        }
+
+        o.WriteLine("Costs are statistical estimates; at the median about half the runs will cost more. The site's charging rules and policies decide what is charged.");
+    }
+}
+
+/// <summary>What the select command was asked.</summary>
+internal sealed record SelectOptions(
+    SelectionObjective Objective,
+    double? Budget,
+    double Quantile,
+    IReadOnlyList<string> Exclude,
+    int? MaxRuns,
+    int EccentricityTrials,
+    double EccentricityTrialLength,
+    int LeftOut,
+    bool Save);
