@@ -14,8 +14,10 @@ public static class Selector
     /// <summary>Work budget (candidate evaluations x demand points) for partial enumeration.</summary>
     public const double EnumerationWork = 5e7;
 
-    /// <summary>How many of the best unchosen candidates the swap pass tries against each chosen one.</summary>
+    /// <summary>How many of the best unchosen candidates the swap pass tries against as many of the least useful chosen ones.</summary>
     public const int SwapCandidates = 50;
+
+
 
     /// <summary>Solves the problem.</summary>
     public static SelectionResult Solve(SelectionProblem problem)
@@ -128,6 +130,7 @@ public static class Selector
         }
 
         var slots = problem.MaxRuns is { } cap ? cap - musts.Count : int.MaxValue;
+        var reaches = ReachTable(start, candidates);
         var chosenMask = new bool[candidates.Count];
         foreach (var m in musts)
         {
@@ -136,7 +139,8 @@ public static class Selector
 
         // 1. Lazy greedy by gain per unit of budget.
         var greedyF = start.Clone();
-        var greedy = Greedy(problem, greedyF, (bool[])chosenMask.Clone(), (double[])capacity.Clone(), slots);
+        var startGains = Enumerable.Repeat(double.NaN, candidates.Count).ToArray();
+        var greedy = Greedy(problem, greedyF, (bool[])chosenMask.Clone(), (double[])capacity.Clone(), slots, startGains, reaches);
         var best = (Set: greedy, Value: greedyF.Value);
         var method = "lazy greedy by gain per cost";
 
@@ -145,7 +149,7 @@ public static class Selector
         {
             foreach (var (j, o) in FreeOptions(problem, chosenMask, capacity))
             {
-                var value = start.Value + start.Gain(candidates[j].Coordinates);
+                var value = start.Value + (double.IsNaN(startGains[j]) ? start.Gain(candidates[j].Coordinates) : startGains[j]);
                 if (value > best.Value + 1e-12)
                 {
                     best = (new List<Assignment> { new(j, o) }, value);
@@ -185,7 +189,7 @@ public static class Selector
                     continue;
                 }
 
-                var completion = Greedy(problem, f, mask, left, slots - seed.Count);
+                var completion = Greedy(problem, f, mask, left, slots - seed.Count, null, reaches);
                 if (f.Value > best.Value + 1e-12)
                 {
                     best = (seed.Select(s => new Assignment(s.Candidate, s.Option)).Concat(completion).ToList(), f.Value);
@@ -201,7 +205,7 @@ public static class Selector
 
         // 4. Swap local search within the budget.
         var chosen = musts.Concat(best.Set).ToList();
-        var swapped = SwapSearch(problem, start, musts.Count, chosen);
+        var swapped = SwapSearch(problem, start, musts.Count, chosen, reaches);
         if (swapped.Improved)
         {
             chosen = swapped.Chosen;
@@ -209,10 +213,41 @@ public static class Selector
         }
 
         var final = CoverageFunction.Evaluate(new CoverageFunction(candidates.Select(c => c.Coordinates).ToList(), candidates.Select(c => c.Value).ToList(), problem.Existing), chosen.Select(a => candidates[a.Candidate].Coordinates));
-        var bound = Math.Min(UpperBound(problem, chosen, musts, capacity), UpperBound(problem, musts.Concat(greedy).ToList(), musts, capacity));
+        var bound = UpperBound(problem, chosen, capacity, reaches);
+        if (reaches is not null || (double)candidates.Count * candidates.Count <= BoundWork)
+        {
+            bound = Math.Min(bound, UpperBound(problem, musts.Concat(greedy).ToList(), capacity, reaches));
+        }
         var guarantee = problem.Pools.Count > 1 ? 0 : seedSize == 3 ? 1 - 1 / Math.E : (1 - 1 / Math.E) / 2;
         return new SelectionResult(chosen, final, Math.Max(bound, final), method, guarantee);
     }
+
+    /// <summary>
+    /// The reach of every candidate, computed in parallel, when it fits in <see cref="ReachCacheBytes"/>
+    /// (estimated from a sample); null otherwise, and gains are then recomputed with a bounded cache.
+    /// </summary>
+    private static Reach[]? ReachTable(CoverageFunction f, IReadOnlyList<SelectionCandidate> candidates)
+    {
+        var n = candidates.Count;
+        if (n == 0)
+        {
+            return Array.Empty<Reach>();
+        }
+
+        var step = Math.Max(1, n / 32);
+        var sample = Enumerable.Range(0, n).Where(j => j % step == 0).Select(j => f.ReachOf(candidates[j].Coordinates).Bytes).Average();
+        if (sample * n > ReachCacheBytes)
+        {
+            return null;
+        }
+
+        var table = new Reach[n];
+        Parallel.For(0, n, j => table[j] = f.ReachOf(candidates[j].Coordinates));
+        return table;
+    }
+
+    private static double GainOf(CoverageFunction f, IReadOnlyList<SelectionCandidate> candidates, Reach[]? reaches, int j) =>
+        reaches is null ? f.Gain(candidates[j].Coordinates) : f.Gain(reaches[j]);
 
     private static double Choose(int n, int k) => k switch
     {
@@ -277,11 +312,26 @@ public static class Selector
         }
     }
 
+    /// <summary>Largest n x n for which the bound is also computed at the greedy set (the smaller bound is kept).</summary>
+    public const double BoundWork = 4e6;
+
+    /// <summary>Largest number of candidates for which the swap search makes more than one pass.</summary>
+    public const int SwapMultiPassCandidates = 2000;
+
+    /// <summary>Stale keys re-evaluated together (in parallel) by the lazy greedy.</summary>
+    public const int EvaluationBatch = 16;
+
+    /// <summary>Memory the lazy greedy may spend caching which demand points a candidate reaches.</summary>
+    public const long ReachCacheBytes = 384L * 1024 * 1024;
+
     /// <summary>
     /// Lazy greedy (Minoux's accelerated greedy): keys are gain / (cost / pool capacity), upper bounds that
-    /// only fall as the set grows, so a popped key that is current is the true best.
+    /// only fall as the set grows, so a popped key that is current is the true best. A candidate evaluated a
+    /// second time keeps its reach (the demand points it covers and the similarities) in a bounded cache, so
+    /// later evaluations need no exponentials. <paramref name="initialGains"/>, when given, receives each
+    /// candidate's gain on the starting set (every candidate is evaluated once before the first choice).
     /// </summary>
-    private static List<Assignment> Greedy(SelectionProblem problem, CoverageFunction f, bool[] chosen, double[] left, int slots)
+    private static List<Assignment> Greedy(SelectionProblem problem, CoverageFunction f, bool[] chosen, double[] left, int slots, double[]? initialGains, Reach[]? reaches)
     {
         var candidates = problem.Candidates;
         var queue = new PriorityQueue<(int Candidate, int Option, int Round), double>();
@@ -290,8 +340,16 @@ public static class Selector
             queue.Enqueue((j, o, -1), double.NegativeInfinity);
         }
 
+        // Which candidates keep their reach is decided in order, by count, so results never depend on timing.
+        var maxCached = reaches is null ? (int)Math.Min(candidates.Count, ReachCacheBytes / (8L * Math.Max(1, candidates.Count) + 64)) : 0;
+        var cache = reaches is null ? new Reach?[candidates.Count] : reaches.Select(r => (Reach?)r).ToArray();
+        var cachedCount = 0;
+        var evaluated = new bool[candidates.Count];
         var picked = new List<Assignment>();
         var round = 0;
+        var batch = new List<(int Candidate, int Option)>(EvaluationBatch);
+        var gains = new double[EvaluationBatch];
+        var makeReach = new bool[EvaluationBatch];
         while (picked.Count < slots && queue.TryDequeue(out var item, out _))
         {
             var option = candidates[item.Candidate].Options[item.Option];
@@ -300,36 +358,125 @@ public static class Selector
                 continue;
             }
 
-            if (item.Round != round)
+            if (item.Round == round)
             {
-                var gain = f.Gain(candidates[item.Candidate].Coordinates);
-                var ratio = gain / Math.Max(option.Cost / problem.Pools[option.Pool].Capacity, 1e-300);
-                queue.Enqueue((item.Candidate, item.Option, round), -ratio);
+                if (Evaluate(item.Candidate) <= 0)
+                {
+                    break;
+                }
+
+                chosen[item.Candidate] = true;
+                left[option.Pool] -= option.Cost;
+                f.Add(candidates[item.Candidate].Coordinates);
+                picked.Add(new Assignment(item.Candidate, item.Option));
+                round++;
                 continue;
             }
 
-            if (f.Gain(candidates[item.Candidate].Coordinates) <= 0)
+            // A stale key: re-evaluate it together with the next stale keys in the queue, in parallel.
+            batch.Clear();
+            batch.Add((item.Candidate, item.Option));
+            while (batch.Count < EvaluationBatch && queue.TryPeek(out var next, out _) && next.Round != round)
             {
-                break;
+                queue.Dequeue();
+                var nextOption = candidates[next.Candidate].Options[next.Option];
+                if (!chosen[next.Candidate] && nextOption.Cost <= left[nextOption.Pool])
+                {
+                    batch.Add((next.Candidate, next.Option));
+                }
             }
 
-            chosen[item.Candidate] = true;
-            left[option.Pool] -= option.Cost;
-            f.Add(candidates[item.Candidate].Coordinates);
-            picked.Add(new Assignment(item.Candidate, item.Option));
-            round++;
+            for (var b = 0; b < batch.Count; b++)
+            {
+                var j = batch[b].Candidate;
+                makeReach[b] = cache[j] is null && evaluated[j] && cachedCount < maxCached;
+                if (makeReach[b])
+                {
+                    cachedCount++;
+                }
+
+                evaluated[j] = true;
+            }
+
+            Parallel.For(0, batch.Count, b =>
+            {
+                var j = batch[b].Candidate;
+                if (makeReach[b])
+                {
+                    cache[j] = f.ReachOf(candidates[j].Coordinates);
+                }
+
+                gains[b] = cache[j] is { } reach ? f.Gain(reach) : f.Gain(candidates[j].Coordinates);
+            });
+
+            for (var b = 0; b < batch.Count; b++)
+            {
+                var (j, o) = batch[b];
+                if (round == 0 && initialGains is not null)
+                {
+                    initialGains[j] = gains[b];
+                }
+
+                var cost = candidates[j].Options[o];
+                queue.Enqueue((j, o, round), -gains[b] / Math.Max(cost.Cost / problem.Pools[cost.Pool].Capacity, 1e-300));
+            }
         }
 
         return picked;
+
+        double Evaluate(int j) => cache[j] is { } reach ? f.Gain(reach) : f.Gain(candidates[j].Coordinates);
     }
 
-    private static (bool Improved, List<Assignment> Chosen) SwapSearch(SelectionProblem problem, CoverageFunction start, int mustCount, List<Assignment> chosen)
+    private static (bool Improved, List<Assignment> Chosen) SwapSearch(SelectionProblem problem, CoverageFunction start, int mustCount, List<Assignment> chosen, Reach[]? reaches)
     {
         var candidates = problem.Candidates;
         var improved = false;
-        for (var pass = 0; pass < 3; pass++)
+        var demand = candidates.Count;
+
+        var passes = candidates.Count <= SwapMultiPassCandidates ? 3 : 1;
+        for (var pass = 0; pass < passes; pass++)
         {
-            var current = CoverageFunction.Evaluate(start, chosen.Skip(mustCount).Select(a => candidates[a.Candidate].Coordinates));
+            // For each demand point: the best similarity with the chosen runs removable by a swap excluded
+            // (base: must and existing runs), and the best and second best among the removable ones.
+            var removable = chosen.Skip(mustCount).ToList();
+            var baseline = start.Clone();
+            var best = new double[demand];
+            var second = new double[demand];
+            var bestOwner = new int[demand];
+            Array.Fill(bestOwner, -1);
+            var points = candidates.Select(c => c.Coordinates).ToArray();
+            var baseSimilarity = new double[demand];
+            for (var i = 0; i < demand; i++)
+            {
+                baseSimilarity[i] = baseline.BestSimilarity(i);
+            }
+
+            for (var s = 0; s < removable.Count; s++)
+            {
+                var facility = candidates[removable[s].Candidate].Coordinates;
+                for (var i = 0; i < demand; i++)
+                {
+                    var k = CoverageFunction.Similarity(points[i], facility);
+                    if (k > best[i])
+                    {
+                        second[i] = best[i];
+                        best[i] = k;
+                        bestOwner[i] = s;
+                    }
+                    else if (k > second[i])
+                    {
+                        second[i] = k;
+                    }
+                }
+            }
+
+            var weights = baseline.Weights;
+            var current = 0.0;
+            for (var i = 0; i < demand; i++)
+            {
+                current += weights[i] * Math.Max(baseSimilarity[i], best[i]);
+            }
+
             var used = new double[problem.Pools.Count];
             foreach (var a in chosen)
             {
@@ -337,30 +484,43 @@ public static class Selector
                 used[o.Pool] += o.Cost;
             }
 
-            var inSet = chosen.Select(a => a.Candidate).ToHashSet();
-            var f = start.Clone();
-            foreach (var a in chosen.Skip(mustCount))
+            var now = start.Clone();
+            foreach (var a in removable)
             {
-                f.Add(candidates[a.Candidate].Coordinates);
+                now.Add(candidates[a.Candidate].Coordinates);
             }
 
+            // Try removing only the chosen runs that contribute least per unit of budget.
+            var loss = new double[removable.Count];
+            for (var i = 0; i < demand; i++)
+            {
+                if (bestOwner[i] >= 0)
+                {
+                    loss[bestOwner[i]] += weights[i] * (best[i] - Math.Max(baseSimilarity[i], second[i]));
+                }
+            }
+
+            var tryOut = Enumerable.Range(0, removable.Count)
+                .OrderBy(s => loss[s] / Math.Max(candidates[removable[s].Candidate].Options[removable[s].Option].Cost / problem.Pools[candidates[removable[s].Candidate].Options[removable[s].Option].Pool].Capacity, 1e-300))
+                .Take(SwapCandidates).ToList();
+            var inSet = chosen.Select(a => a.Candidate).ToHashSet();
             var outside = Enumerable.Range(0, candidates.Count).Where(j => !inSet.Contains(j))
-                .SelectMany(j => candidates[j].Options.Select((o, k) => (Candidate: j, Option: k, Ratio: f.Gain(candidates[j].Coordinates) / Math.Max(o.Cost / problem.Pools[o.Pool].Capacity, 1e-300))))
+                .Select(j => (Candidate: j, Gain: GainOf(now, candidates, reaches, j)))
+                .SelectMany(x => candidates[x.Candidate].Options.Select((o, k) => (x.Candidate, Option: k, Ratio: x.Gain / Math.Max(o.Cost / problem.Pools[o.Pool].Capacity, 1e-300))))
                 .OrderByDescending(x => x.Ratio).Take(SwapCandidates).ToList();
             var bestGain = 1e-9;
             (int Out, Assignment In)? bestSwap = null;
-            for (var s = mustCount; s < chosen.Count; s++)
+            var without = new double[demand];
+            foreach (var s in tryOut)
             {
-                var without = start.Clone();
-                for (var t = mustCount; t < chosen.Count; t++)
+                var withoutValue = 0.0;
+                for (var i = 0; i < demand; i++)
                 {
-                    if (t != s)
-                    {
-                        without.Add(candidates[chosen[t].Candidate].Coordinates);
-                    }
+                    without[i] = Math.Max(baseSimilarity[i], bestOwner[i] == s ? second[i] : best[i]);
+                    withoutValue += weights[i] * without[i];
                 }
 
-                var removed = candidates[chosen[s].Candidate].Options[chosen[s].Option];
+                var removed = candidates[removable[s].Candidate].Options[removable[s].Option];
                 foreach (var (j, o, _) in outside)
                 {
                     var option = candidates[j].Options[o];
@@ -370,11 +530,37 @@ public static class Selector
                         continue;
                     }
 
-                    var value = without.Value + without.Gain(candidates[j].Coordinates);
+                    var value = withoutValue;
+                    if (reaches is not null)
+                    {
+                        var reach = reaches[j];
+                        for (var r = 0; r < reach.Index.Length; r++)
+                        {
+                            var i = reach.Index[r];
+                            var k = reach.Similarity[r];
+                            if (k > without[i])
+                            {
+                                value += weights[i] * (k - without[i]);
+                            }
+                        }
+                    }
+                    else
+                    {
+                        var facility = candidates[j].Coordinates;
+                        for (var i = 0; i < demand; i++)
+                        {
+                            var k = CoverageFunction.Similarity(points[i], facility);
+                            if (k > without[i])
+                            {
+                                value += weights[i] * (k - without[i]);
+                            }
+                        }
+                    }
+
                     if (value - current > bestGain)
                     {
                         bestGain = value - current;
-                        bestSwap = (s, new Assignment(j, o));
+                        bestSwap = (mustCount + s, new Assignment(j, o));
                     }
                 }
             }
@@ -397,7 +583,7 @@ public static class Selector
     /// budgets }, relaxed to a fractional knapsack per pool (each candidate may count in every pool it can use,
     /// which only loosens the bound), capped at 1.
     /// </summary>
-    private static double UpperBound(SelectionProblem problem, List<Assignment> set, List<Assignment> musts, double[] capacityAfterMusts)
+    private static double UpperBound(SelectionProblem problem, List<Assignment> set, double[] capacityAfterMusts, Reach[]? reaches)
     {
         var candidates = problem.Candidates;
         var f = new CoverageFunction(candidates.Select(c => c.Coordinates).ToList(), candidates.Select(c => c.Value).ToList(), problem.Existing);
@@ -408,10 +594,7 @@ public static class Selector
 
         var inSet = set.Select(a => a.Candidate).ToHashSet();
         var gains = new double[candidates.Count];
-        for (var j = 0; j < candidates.Count; j++)
-        {
-            gains[j] = inSet.Contains(j) ? 0 : f.Gain(candidates[j].Coordinates);
-        }
+        Parallel.For(0, candidates.Count, j => gains[j] = inSet.Contains(j) ? 0 : GainOf(f, candidates, reaches, j));
 
         var bound = f.Value;
         for (var p = 0; p < problem.Pools.Count; p++)
