@@ -71,6 +71,9 @@ public class WorkspaceCommandTests
         Assert.Equal(16, steps.GetProperty("lengths").GetProperty("runs").GetArrayLength());
         Assert.True(steps.GetProperty("model").GetProperty("n_runs").GetInt32() > 100);
         Assert.True(steps.GetProperty("estimate").GetProperty("runs").GetArrayLength() > 40);
+        var select = steps.GetProperty("select");
+        Assert.Equal(1, select.GetProperty("plan_id").GetInt64());
+        Assert.True(select.GetProperty("upper_bound").GetDouble() >= select.GetProperty("value").GetDouble());
         Assert.True(File.Exists(Path.Combine(folder.Path, "demo-ws", "campaign.db")));
         Assert.Equal(0, CliRun.Of(folder.Path, "--dir", "demo-ws", "check").ExitCode);
     }
