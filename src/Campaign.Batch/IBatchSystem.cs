@@ -1,0 +1,29 @@
+namespace Campaign.Batch;
+
+/// <summary>
+/// The contract every batch-system adapter fulfils (local processes, Slurm, PBS).
+/// <list type="bullet">
+/// <item><see cref="SubmitAsync"/> queues one job segment and returns the batch system's job id.</item>
+/// <item><see cref="QueryAsync"/> returns the status of many jobs in one call (one batch-system query per call,
+/// however many ids), including final state, exit code, signal, elapsed time and charged cores once a job has
+/// finished. An id the batch system no longer knows comes back as <see cref="JobState.Missing"/>; a native state
+/// the adapter does not know comes back as <see cref="JobState.Unknown"/>, never as finished.</item>
+/// <item><see cref="CancelAsync"/> asks the batch system to cancel a job; cancelling a finished job is not an error.</item>
+/// </list>
+/// Adapters are small and do not retry, wait or log: they let errors propagate as
+/// <see cref="BatchSystemException"/>, classified transient (worth retrying) or permanent. Retries with backoff
+/// and command timeouts are decorators owned by the host (<see cref="Resilience.ResilientBatchSystem"/>); a
+/// timeout reaches the adapter as cancellation of <c>cancellationToken</c>. Commands run with argument lists,
+/// never through a shell.
+/// </summary>
+public interface IBatchSystem
+{
+    /// <summary>Submits a job segment; returns its job id.</summary>
+    Task<string> SubmitAsync(JobRequest request, CancellationToken cancellationToken);
+
+    /// <summary>Statuses of every id in <paramref name="jobIds"/>, keyed by id, in one batch-system query.</summary>
+    Task<IReadOnlyDictionary<string, JobStatus>> QueryAsync(IReadOnlyCollection<string> jobIds, CancellationToken cancellationToken);
+
+    /// <summary>Cancels a job (a no-op for a job that has finished).</summary>
+    Task CancelAsync(string jobId, CancellationToken cancellationToken);
+}
