@@ -15,10 +15,11 @@ public sealed class CommandRunner
     public CommandRunner(IReadOnlyDictionary<string, string>? environment = null) => _environment = environment ?? new Dictionary<string, string>();
 
     /// <summary>Runs <paramref name="fileName"/> with <paramref name="arguments"/>; extra environment for this call in <paramref name="environment"/>.</summary>
-    public async Task<CommandResult> RunAsync(string fileName, IEnumerable<string> arguments, CancellationToken cancellationToken, IReadOnlyDictionary<string, string>? environment = null)
+    public async Task<CommandResult> RunAsync(string fileName, IEnumerable<string> arguments, CancellationToken cancellationToken, IReadOnlyDictionary<string, string>? environment = null, string? workingDirectory = null)
     {
         var start = new ProcessStartInfo(fileName)
         {
+            WorkingDirectory = workingDirectory ?? "",
             RedirectStandardOutput = true,
             RedirectStandardError = true,
             RedirectStandardInput = true,
