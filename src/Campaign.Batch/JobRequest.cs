@@ -57,9 +57,9 @@ public sealed record JobRequest(
             problems.Add($"cores = {Cores}: expected at least 1");
         }
 
-        if (WallTime < TimeSpan.FromMinutes(1))
+        if (WallTime < TimeSpan.FromSeconds(1))
         {
-            problems.Add($"wall time = {WallTime}: expected at least one minute");
+            problems.Add($"wall time = {WallTime}: expected at least one second (Slurm and PBS round up to whole minutes)");
         }
 
         foreach (var key in Environment.Keys.Where(k => !IsEnvironmentName(k)))

@@ -1,2 +1,0 @@
-// Batch systems and the local runner use POSIX processes and signals: Linux (and other Unix) only.
-[assembly: System.Runtime.Versioning.SupportedOSPlatform("linux")]
