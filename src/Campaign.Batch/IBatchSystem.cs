@@ -9,6 +9,8 @@ namespace Campaign.Batch;
 /// finished. An id the batch system no longer knows comes back as <see cref="JobState.Missing"/>; a native state
 /// the adapter does not know comes back as <see cref="JobState.Unknown"/>, never as finished.</item>
 /// <item><see cref="CancelAsync"/> asks the batch system to cancel a job; cancelling a finished job is not an error.</item>
+/// <item><see cref="FindAsync"/> looks a job up by its (unique) name, so a host that crashed between submitting and
+/// recording the id can find the job instead of submitting it twice.</item>
 /// </list>
 /// Adapters are small and do not retry, wait or log: they let errors propagate as
 /// <see cref="BatchSystemException"/>, classified transient (worth retrying) or permanent. Retries with backoff
@@ -26,4 +28,7 @@ public interface IBatchSystem
 
     /// <summary>Cancels a job (a no-op for a job that has finished).</summary>
     Task CancelAsync(string jobId, CancellationToken cancellationToken);
+
+    /// <summary>The id of the job named <paramref name="jobName"/> (the newest if several), or null when there is none.</summary>
+    Task<string?> FindAsync(string jobName, CancellationToken cancellationToken);
 }

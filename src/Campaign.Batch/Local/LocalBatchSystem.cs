@@ -121,6 +121,21 @@ public sealed class LocalBatchSystem : IBatchSystem
         return Task.CompletedTask;
     }
 
+    /// <inheritdoc />
+    public Task<string?> FindAsync(string jobName, CancellationToken cancellationToken)
+    {
+        using (Lock())
+        {
+            var id = Directory.EnumerateDirectories(JobsFolder)
+                .Select(Path.GetFileName)
+                .OfType<string>()
+                .Where(n => long.TryParse(n, NumberStyles.None, CultureInfo.InvariantCulture, out _))
+                .OrderBy(n => long.Parse(n, CultureInfo.InvariantCulture))
+                .LastOrDefault(n => File.Exists(Files(n).RequestPath) && Files(n).ReadRequest().Name == jobName);
+            return Task.FromResult(id);
+        }
+    }
+
     private JobStatus Status(string id)
     {
         var files = Files(id);

@@ -106,6 +106,19 @@ public sealed class PbsBatchSystem : IBatchSystem
         }
     }
 
+    /// <inheritdoc />
+    public async Task<string?> FindAsync(string jobName, CancellationToken cancellationToken)
+    {
+        // qselect -x -N NAME lists the ids of jobs (finished ones included) with that name.
+        var result = await _runner.RunAsync(Command("qselect"), new[] { "-x", "-N", jobName }, cancellationToken).ConfigureAwait(false);
+        if (result.ExitCode != 0)
+        {
+            throw Classify("qselect", result);
+        }
+
+        return result.StandardOutput.Split('\n', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries).LastOrDefault();
+    }
+
     private string Command(string name) => _options.CommandFolder is { } folder ? Path.Combine(folder, name) : name;
 
     private static BatchSystemException Classify(string command, CommandResult result)

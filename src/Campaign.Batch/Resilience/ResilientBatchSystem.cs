@@ -52,6 +52,10 @@ public sealed class ResilientBatchSystem : IBatchSystem
             },
             cancellationToken);
 
+    /// <inheritdoc />
+    public Task<string?> FindAsync(string jobName, CancellationToken cancellationToken) =>
+        Run(token => _inner.FindAsync(jobName, token), cancellationToken);
+
     private async Task<T> Run<T>(Func<CancellationToken, Task<T>> call, CancellationToken cancellationToken)
     {
         var delay = _options.FirstDelay;

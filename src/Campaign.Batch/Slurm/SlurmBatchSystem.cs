@@ -145,6 +145,35 @@ public sealed class SlurmBatchSystem : IBatchSystem
         }
     }
 
+    /// <inheritdoc />
+    public async Task<string?> FindAsync(string jobName, CancellationToken cancellationToken)
+    {
+        var queue = await Run("squeue", new[] { "--noheader", "--me", "--states=all", "--name=" + jobName, "--format=%i" }, cancellationToken).ConfigureAwait(false);
+        var ids = queue.StandardOutput.Split('\n', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries);
+        if (ids.Length > 0)
+        {
+            return ids.OrderBy(id => long.TryParse(id, NumberStyles.None, CultureInfo.InvariantCulture, out var n) ? n : 0).Last();
+        }
+
+        var sacct = await Run("sacct", new[] { "--parsable2", "--noheader", "--allocations", "--name=" + jobName, "--format=JobID" }, cancellationToken, allowFailure: true).ConfigureAwait(false);
+        if (sacct.ExitCode == 0 && !(sacct.StandardError + sacct.StandardOutput).Contains("accounting storage is disabled", StringComparison.OrdinalIgnoreCase))
+        {
+            var found = sacct.StandardOutput.Split('\n', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries).LastOrDefault();
+            if (found is not null)
+            {
+                return found;
+            }
+        }
+
+        if (await JobCompletionFile(cancellationToken).ConfigureAwait(false) is { } file && File.Exists(file))
+        {
+            var record = SlurmParsers.KeyValueRecords(await File.ReadAllTextAsync(file, cancellationToken).ConfigureAwait(false), "jobcomp file").LastOrDefault(s => s.Name == jobName);
+            return record?.JobId;
+        }
+
+        return null;
+    }
+
     /// <summary>Jobs the controller has purged: accounting first, then the job-completion file.</summary>
     private async Task<IReadOnlyList<JobStatus>> Forgotten(IReadOnlyList<string> ids, CancellationToken cancellationToken)
     {

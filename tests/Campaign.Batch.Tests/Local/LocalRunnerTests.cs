@@ -123,6 +123,15 @@ public sealed class LocalRunnerTests : IDisposable
     }
 
     [Fact]
+    public async Task A_job_is_found_by_its_name_and_an_unknown_name_is_not()
+    {
+        var runner = LocalRunner.Create(State);
+        var id = await runner.SubmitAsync(Request("named", "exit 0"), CancellationToken.None);
+        Assert.Equal(id, await runner.FindAsync(JobName.For("named", 1), CancellationToken.None));
+        Assert.Null(await runner.FindAsync(JobName.For("never", 1), CancellationToken.None));
+    }
+
+    [Fact]
     public async Task Unknown_ids_are_missing_and_jobs_larger_than_the_runner_are_refused()
     {
         var runner = LocalRunner.Create(State, cores: 2);

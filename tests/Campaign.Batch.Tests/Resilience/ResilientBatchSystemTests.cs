@@ -44,6 +44,12 @@ public class ResilientBatchSystemTests
             Calls++;
             return Task.CompletedTask;
         }
+
+        public Task<string?> FindAsync(string jobName, CancellationToken cancellationToken)
+        {
+            Calls++;
+            return Task.FromResult<string?>(null);
+        }
     }
 
     private static readonly RetryOptions Options = new(4, TimeSpan.FromSeconds(2), TimeSpan.FromSeconds(10), TimeSpan.FromSeconds(30));

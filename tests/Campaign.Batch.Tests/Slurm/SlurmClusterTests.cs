@@ -33,6 +33,15 @@ public sealed class SlurmClusterTests : IDisposable
     }
 
     [SlurmFact]
+    public async Task A_job_is_found_by_its_name_and_an_unknown_name_is_not()
+    {
+        var slurm = SlurmCluster.Adapter();
+        var id = await slurm.SubmitAsync(_jobs.Request("findme", _jobs.Script("findme", "exit 0")), CancellationToken.None);
+        Assert.Equal(id, await slurm.FindAsync(JobName.For("findme", 1), CancellationToken.None));
+        Assert.Null(await slurm.FindAsync(JobName.For("nobody-" + Guid.NewGuid().ToString("N")[..8], 1), CancellationToken.None));
+    }
+
+    [SlurmFact]
     public async Task A_segment_that_fails_reports_its_exit_code()
     {
         var slurm = SlurmCluster.Adapter();
