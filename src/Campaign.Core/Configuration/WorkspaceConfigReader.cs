@@ -17,7 +17,7 @@ public static class WorkspaceConfigReader
 
         var problems = new List<string>();
         var top = new TomlFields(root, source, problems);
-        top.RejectUnknown("campaign", "allocation", "defaults", "length", "selection");
+        top.RejectUnknown("campaign", "allocation", "defaults", "length", "selection", "tracking");
         var known = knownMachines.Count == 0 ? "(no machine profiles found)" : string.Join(", ", knownMachines.Order(StringComparer.Ordinal));
 
         var campaign = top.SubTable("campaign", required: true);
@@ -100,12 +100,13 @@ public static class WorkspaceConfigReader
 
         var length = ReadLength(top.SubTable("length", false), source, problems);
         var space = ReadSelection(top.SubTable("selection", false), source, problems);
+        var tracking = ReadTracking(top.SubTable("tracking", false), source, problems);
         if (problems.Count > 0)
         {
             throw new InvalidInputException(problems);
         }
 
-        return new WorkspaceConfig(name, machines, defaultMachine, allocations, defaults, length, space);
+        return new WorkspaceConfig(name, machines, defaultMachine, allocations, defaults, length, space, tracking);
     }
 
     private static Allocation? ReadAllocation(TomlTable table, string source, List<string> problems, IReadOnlyList<string> machines)
@@ -168,6 +169,68 @@ public static class WorkspaceConfigReader
         }
 
         return new Allocation(machine!, amount!.Value, unit == "node-hours" ? AllocationUnit.NodeHours : AllocationUnit.CoreHours, start!.Value, end!.Value, windows);
+    }
+
+    private static Tracking.TrackingSettings ReadTracking(TomlTable? table, string source, List<string> problems)
+    {
+        var settings = new Tracking.TrackingSettings();
+        if (table is null)
+        {
+            return settings;
+        }
+
+        var f = new TomlFields(table, source, problems);
+        f.RejectUnknown(
+            "runs_folder", "script", "segment_minutes", "warning_signal", "warning_seconds", "checkpoint_pattern", "checkpoint_marker",
+            "checkpoint_settle_seconds", "checkpoint_checksum", "progress_file", "progress_regex", "done_marker", "retry_limit",
+            "failures_without_progress", "stall_minutes", "growth_window", "growth_rate_limit", "reserve_core_hours", "prequeue",
+            "notify_command", "reconcile_seconds");
+        settings = new Tracking.TrackingSettings
+        {
+            RunsFolder = f.String("runs_folder", false) ?? settings.RunsFolder,
+            Script = f.String("script", false) ?? settings.Script,
+            SegmentMinutes = f.FiniteNumber("segment_minutes") ?? settings.SegmentMinutes,
+            WarningSignal = f.String("warning_signal", false) ?? settings.WarningSignal,
+            WarningSeconds = (int)(f.Integer("warning_seconds", false, 0, 86_400) ?? settings.WarningSeconds),
+            CheckpointPattern = f.String("checkpoint_pattern", false) ?? settings.CheckpointPattern,
+            CheckpointMarker = f.String("checkpoint_marker", false) ?? settings.CheckpointMarker,
+            CheckpointSettleSeconds = f.FiniteNumber("checkpoint_settle_seconds") ?? settings.CheckpointSettleSeconds,
+            CheckpointChecksum = f.Boolean("checkpoint_checksum", false) ?? settings.CheckpointChecksum,
+            ProgressFile = f.String("progress_file", false) ?? settings.ProgressFile,
+            ProgressRegex = f.String("progress_regex", false) ?? settings.ProgressRegex,
+            DoneMarker = f.String("done_marker", false) ?? settings.DoneMarker,
+            RetryLimit = (int)(f.Integer("retry_limit", false, 0, 100) ?? settings.RetryLimit),
+            FailuresWithoutProgress = (int)(f.Integer("failures_without_progress", false, 1, 100) ?? settings.FailuresWithoutProgress),
+            StallMinutes = f.FiniteNumber("stall_minutes") ?? settings.StallMinutes,
+            GrowthWindow = (int)(f.Integer("growth_window", false, 3, 100_000) ?? settings.GrowthWindow),
+            GrowthRateLimit = f.FiniteNumber("growth_rate_limit") ?? settings.GrowthRateLimit,
+            ReserveCoreHours = f.FiniteNumber("reserve_core_hours") ?? settings.ReserveCoreHours,
+            Prequeue = f.Boolean("prequeue", false) ?? settings.Prequeue,
+            NotifyCommand = f.StringList("notify_command", false) ?? settings.NotifyCommand,
+            ReconcileSeconds = f.FiniteNumber("reconcile_seconds") ?? settings.ReconcileSeconds,
+        };
+        if (table.Contains("progress_regex") && settings.ProgressRegex.Length > 0)
+        {
+            try
+            {
+                _ = new System.Text.RegularExpressions.Regex(settings.ProgressRegex);
+                if (!settings.ProgressRegex.Contains("(?<t>", StringComparison.Ordinal))
+                {
+                    f.Problem("progress_regex", "a regular expression with a named group (?<t>...) for the simulated time");
+                }
+            }
+            catch (ArgumentException e)
+            {
+                f.Problem("progress_regex", "a valid regular expression (" + e.Message + ")");
+            }
+        }
+
+        foreach (var problem in settings.Validate())
+        {
+            f.Problem(problem.Field, problem.Expected);
+        }
+
+        return settings;
     }
 
     private static Selection.ParameterSpace ReadSelection(TomlTable? table, string source, List<string> problems)

@@ -18,4 +18,5 @@ public sealed record WorkspaceConfig(
     IReadOnlyList<Allocation> Allocations,
     RunDefaults Defaults,
     LengthSettings Length,
-    Selection.ParameterSpace Selection);
+    Selection.ParameterSpace Selection,
+    Tracking.TrackingSettings Tracking);

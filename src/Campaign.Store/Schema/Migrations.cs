@@ -93,6 +93,72 @@ public static class Migrations
                 PRIMARY KEY (plan_id, config_id)
             ) STRICT;
             """),
+        new Migration(4, "tracked runs, segments and run events", """
+            CREATE TABLE tracked_runs (
+                run_id                    TEXT PRIMARY KEY NOT NULL,
+                config_id                 TEXT NOT NULL,
+                level                     INTEGER NOT NULL,
+                machine                   TEXT NOT NULL,
+                cores                     INTEGER NOT NULL,
+                folder                    TEXT NOT NULL,
+                target_length             REAL NOT NULL,
+                q                         REAL NOT NULL,
+                chi1x                     REAL NOT NULL,
+                chi1y                     REAL NOT NULL,
+                chi1z                     REAL NOT NULL,
+                chi2x                     REAL NOT NULL,
+                chi2y                     REAL NOT NULL,
+                chi2z                     REAL NOT NULL,
+                omega0                    REAL NOT NULL,
+                position                  INTEGER NOT NULL,
+                state                     TEXT NOT NULL,
+                reason                    TEXT NOT NULL DEFAULT '',
+                failures_with_progress    INTEGER NOT NULL DEFAULT 0,
+                failures_without_progress INTEGER NOT NULL DEFAULT 0,
+                stall_restarts            INTEGER NOT NULL DEFAULT 0,
+                progress_t                REAL NOT NULL DEFAULT 0,
+                progress_at               TEXT,
+                norm                      REAL,
+                checkpoint                TEXT,
+                created_at                TEXT NOT NULL,
+                updated_at                TEXT NOT NULL,
+                finished_at               TEXT
+            ) STRICT;
+
+            CREATE TABLE segments (
+                id                    INTEGER PRIMARY KEY,
+                run_id                TEXT NOT NULL REFERENCES tracked_runs (run_id),
+                number                INTEGER NOT NULL,
+                job_name              TEXT NOT NULL UNIQUE,
+                job_id                TEXT,
+                phase                 TEXT NOT NULL CHECK (phase IN ('intent', 'submitted', 'ended')),
+                job_state             TEXT NOT NULL DEFAULT '',
+                native_state          TEXT NOT NULL DEFAULT '',
+                exit_code             INTEGER,
+                signal                INTEGER,
+                elapsed_seconds       REAL,
+                charged_core_hours    REAL,
+                worst_case_core_hours REAL NOT NULL,
+                wall_seconds          REAL NOT NULL,
+                start_t               REAL NOT NULL,
+                restart_from          TEXT,
+                cancel_reason         TEXT,
+                submitted_at          TEXT NOT NULL,
+                ended_at              TEXT,
+                UNIQUE (run_id, number)
+            ) STRICT;
+            CREATE INDEX segments_open ON segments (phase, run_id);
+
+            CREATE TABLE run_events (
+                id         INTEGER PRIMARY KEY,
+                at         TEXT NOT NULL,
+                run_id     TEXT NOT NULL,
+                from_state TEXT NOT NULL,
+                to_state   TEXT NOT NULL,
+                why        TEXT NOT NULL
+            ) STRICT;
+            CREATE INDEX run_events_by_run ON run_events (run_id, id);
+            """),
     };
 
     /// <summary>Schema version this build writes.</summary>

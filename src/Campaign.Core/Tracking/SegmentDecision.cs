@@ -1,0 +1,68 @@
+namespace Campaign.Core.Tracking;
+
+/// <summary>What to do when a run's segment has ended.</summary>
+public enum NextStep
+{
+    /// <summary>The run reached its target: finished.</summary>
+    Finish,
+
+    /// <summary>Submit the next segment from the newest valid checkpoint.</summary>
+    Continue,
+
+    /// <summary>Hold the run for a human, with the reason.</summary>
+    Hold,
+}
+
+/// <summary>How a segment ended, as the tracker sees it.</summary>
+/// <param name="Ending">"completed", "timed_out", "preempted", "node_failed", "requeued", "failed", "out_of_memory",
+/// "launch_failed", "cancelled", "cancelled_for_stall", "deadline", "vanished".</param>
+/// <param name="ProgressBefore">Simulated time when the segment was submitted.</param>
+/// <param name="ProgressAfter">Simulated time reported now.</param>
+/// <param name="Target">The run's target length.</param>
+/// <param name="DoneMarker">True when the run's done marker exists.</param>
+/// <param name="FailuresWithProgress">Failures in a row so far that still made progress.</param>
+/// <param name="FailuresWithoutProgress">Failures in a row so far without progress.</param>
+public sealed record SegmentEnd(string Ending, double ProgressBefore, double ProgressAfter, double Target, bool DoneMarker, int FailuresWithProgress, int FailuresWithoutProgress);
+
+/// <summary>The restart rules (docs/tracking.md), as a pure function.</summary>
+public static class SegmentDecision
+{
+    /// <summary>Endings that are not the run's fault: the next segment simply continues.</summary>
+    public static readonly IReadOnlySet<string> Interruptions = new HashSet<string>(StringComparer.Ordinal)
+    {
+        "completed", "timed_out", "preempted", "node_failed", "requeued", "cancelled_for_stall",
+    };
+
+    /// <summary>Decides the next step and the failure counters after it.</summary>
+    public static (NextStep Step, string Why, int FailuresWithProgress, int FailuresWithoutProgress) Decide(SegmentEnd end, TrackingSettings settings)
+    {
+        if (end.DoneMarker || end.ProgressAfter >= end.Target * (1 - 1e-9))
+        {
+            return (NextStep.Finish, end.DoneMarker ? "done marker written" : $"reached t = {end.ProgressAfter:0.#} M of {end.Target:0.#} M", 0, 0);
+        }
+
+        var progressed = end.ProgressAfter > end.ProgressBefore;
+        if (Interruptions.Contains(end.Ending))
+        {
+            if (progressed || end.Ending != "completed")
+            {
+                return (NextStep.Continue, $"segment {end.Ending.Replace('_', ' ')}; continue from the newest checkpoint", 0, progressed ? 0 : end.FailuresWithoutProgress);
+            }
+
+            // Ended cleanly but did nothing: count it as a failure without progress.
+        }
+
+        if (progressed)
+        {
+            var withProgress = end.FailuresWithProgress + 1;
+            return withProgress > settings.RetryLimit
+                ? (NextStep.Hold, $"segment {end.Ending.Replace('_', ' ')} {withProgress} times in a row (retry limit {settings.RetryLimit})", withProgress, 0)
+                : (NextStep.Continue, $"segment {end.Ending.Replace('_', ' ')} after progress; retry {withProgress} of {settings.RetryLimit}", withProgress, 0);
+        }
+
+        var without = end.FailuresWithoutProgress + 1;
+        return without >= settings.FailuresWithoutProgress
+            ? (NextStep.Hold, $"segment {end.Ending.Replace('_', ' ')} without progress {without} times in a row (t = {end.ProgressAfter:0.#} M)", end.FailuresWithProgress, without)
+            : (NextStep.Continue, $"segment {end.Ending.Replace('_', ' ')} without progress; trying once more", end.FailuresWithProgress, without);
+    }
+}

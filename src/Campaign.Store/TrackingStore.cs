@@ -1,0 +1,249 @@
+using System.Globalization;
+using Campaign.Core.Domain;
+using Campaign.Core.Tracking;
+using Dapper;
+using Microsoft.Data.Sqlite;
+
+namespace Campaign.Store;
+
+/// <summary>A tracked run as stored (mutable: the reconciler changes it and saves it in a transaction).</summary>
+public sealed class TrackedRun
+{
+    public string RunId { get; set; } = "";
+
+    public string ConfigId { get; set; } = "";
+
+    public long Level { get; set; }
+
+    public string Machine { get; set; } = "";
+
+    public long Cores { get; set; }
+
+    public string Folder { get; set; } = "";
+
+    public double TargetLength { get; set; }
+
+    public double Q { get; set; }
+
+    public double Chi1x { get; set; }
+
+    public double Chi1y { get; set; }
+
+    public double Chi1z { get; set; }
+
+    public double Chi2x { get; set; }
+
+    public double Chi2y { get; set; }
+
+    public double Chi2z { get; set; }
+
+    public double Omega0 { get; set; }
+
+    public long Position { get; set; }
+
+    public string State { get; set; } = "planned";
+
+    public string Reason { get; set; } = "";
+
+    public long FailuresWithProgress { get; set; }
+
+    public long FailuresWithoutProgress { get; set; }
+
+    public long StallRestarts { get; set; }
+
+    public double ProgressT { get; set; }
+
+    public string? ProgressAt { get; set; }
+
+    public double? Norm { get; set; }
+
+    public string? Checkpoint { get; set; }
+
+    public string CreatedAt { get; set; } = "";
+
+    public string UpdatedAt { get; set; } = "";
+
+    public string? FinishedAt { get; set; }
+
+    public RunState RunState => RunStates.Parse(State);
+
+    public BinaryConfiguration Configuration =>
+        new(MassRatio.From(Q), Spin.From(Chi1x, Chi1y, Chi1z, "chi1"), Spin.From(Chi2x, Chi2y, Chi2z, "chi2"), Omega0);
+}
+
+/// <summary>A job segment of a tracked run as stored.</summary>
+public sealed class Segment
+{
+    public long Id { get; set; }
+
+    public string RunId { get; set; } = "";
+
+    public long Number { get; set; }
+
+    public string JobName { get; set; } = "";
+
+    public string? JobId { get; set; }
+
+    /// <summary>intent (recorded, not yet known to be submitted), submitted, ended.</summary>
+    public string Phase { get; set; } = "intent";
+
+    public string JobState { get; set; } = "";
+
+    public string NativeState { get; set; } = "";
+
+    public long? ExitCode { get; set; }
+
+    public long? Signal { get; set; }
+
+    public double? ElapsedSeconds { get; set; }
+
+    public double? ChargedCoreHours { get; set; }
+
+    public double WorstCaseCoreHours { get; set; }
+
+    public double WallSeconds { get; set; }
+
+    public double StartT { get; set; }
+
+    public string? RestartFrom { get; set; }
+
+    public string? CancelReason { get; set; }
+
+    public string SubmittedAt { get; set; } = "";
+
+    public string? EndedAt { get; set; }
+}
+
+/// <summary>One state change of a run.</summary>
+public sealed record RunEvent(long Id, string At, string RunId, string FromState, string ToState, string Why);
+
+/// <summary>Reads and writes tracked runs, segments and run events. Callers own the transactions.</summary>
+public static class TrackingStore
+{
+    private const string RunColumns = "run_id AS RunId, config_id AS ConfigId, level AS Level, machine AS Machine, cores AS Cores, folder AS Folder, target_length AS TargetLength, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, position AS Position, state AS State, reason AS Reason, failures_with_progress AS FailuresWithProgress, failures_without_progress AS FailuresWithoutProgress, stall_restarts AS StallRestarts, progress_t AS ProgressT, progress_at AS ProgressAt, norm AS Norm, checkpoint AS Checkpoint, created_at AS CreatedAt, updated_at AS UpdatedAt, finished_at AS FinishedAt";
+
+    private const string SegmentColumns = "id AS Id, run_id AS RunId, number AS Number, job_name AS JobName, job_id AS JobId, phase AS Phase, job_state AS JobState, native_state AS NativeState, exit_code AS ExitCode, signal AS Signal, elapsed_seconds AS ElapsedSeconds, charged_core_hours AS ChargedCoreHours, worst_case_core_hours AS WorstCaseCoreHours, wall_seconds AS WallSeconds, start_t AS StartT, restart_from AS RestartFrom, cancel_reason AS CancelReason, submitted_at AS SubmittedAt, ended_at AS EndedAt";
+
+    public static IReadOnlyList<TrackedRun> Runs(SqliteConnection connection, SqliteTransaction? transaction = null) =>
+        connection.Query<TrackedRun>($"SELECT {RunColumns} FROM tracked_runs ORDER BY position, run_id", transaction: transaction).ToList();
+
+    public static TrackedRun? Run(SqliteConnection connection, string runId, SqliteTransaction? transaction = null) =>
+        connection.QueryFirstOrDefault<TrackedRun>($"SELECT {RunColumns} FROM tracked_runs WHERE run_id = @runId", new { runId }, transaction);
+
+    public static IReadOnlyList<Segment> Segments(SqliteConnection connection, SqliteTransaction? transaction = null) =>
+        connection.Query<Segment>($"SELECT {SegmentColumns} FROM segments ORDER BY run_id, number", transaction: transaction).ToList();
+
+    public static IReadOnlyList<Segment> SegmentsOf(SqliteConnection connection, string runId, SqliteTransaction? transaction = null) =>
+        connection.Query<Segment>($"SELECT {SegmentColumns} FROM segments WHERE run_id = @runId ORDER BY number", new { runId }, transaction).ToList();
+
+    public static IReadOnlyList<RunEvent> Events(SqliteConnection connection, string? runId = null) =>
+        connection.Query<RunEvent>(
+            "SELECT id AS Id, at AS At, run_id AS RunId, from_state AS FromState, to_state AS ToState, why AS Why FROM run_events WHERE @runId IS NULL OR run_id = @runId ORDER BY id",
+            new { runId }).ToList();
+
+    /// <summary>Adds a run (state planned) with its first event.</summary>
+    public static void Add(SqliteConnection connection, SqliteTransaction transaction, TrackedRun run, string at)
+    {
+        run.CreatedAt = at;
+        run.UpdatedAt = at;
+        connection.Execute(
+            """
+            INSERT INTO tracked_runs (run_id, config_id, level, machine, cores, folder, target_length, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0,
+                position, state, reason, created_at, updated_at)
+            VALUES (@RunId, @ConfigId, @Level, @Machine, @Cores, @Folder, @TargetLength, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0,
+                @Position, @State, @Reason, @CreatedAt, @UpdatedAt)
+            """,
+            run,
+            transaction);
+        Event(connection, transaction, at, run.RunId, "", run.State, "added from the plan");
+    }
+
+    /// <summary>Saves every mutable field of a run; when its state changed from <paramref name="from"/>, adds the event.</summary>
+    public static void Save(SqliteConnection connection, SqliteTransaction transaction, TrackedRun run, string from, string why, string at)
+    {
+        run.UpdatedAt = at;
+        connection.Execute(
+            """
+            UPDATE tracked_runs SET machine = @Machine, cores = @Cores, state = @State, reason = @Reason, failures_with_progress = @FailuresWithProgress,
+                failures_without_progress = @FailuresWithoutProgress, stall_restarts = @StallRestarts, progress_t = @ProgressT, progress_at = @ProgressAt,
+                norm = @Norm, checkpoint = @Checkpoint, updated_at = @UpdatedAt, finished_at = @FinishedAt
+            WHERE run_id = @RunId
+            """,
+            run,
+            transaction);
+        if (from != run.State)
+        {
+            Event(connection, transaction, at, run.RunId, from, run.State, why);
+        }
+    }
+
+    /// <summary>Inserts a segment (its id is set) .</summary>
+    public static void Insert(SqliteConnection connection, SqliteTransaction transaction, Segment segment) =>
+        segment.Id = connection.ExecuteScalar<long>(
+            """
+            INSERT INTO segments (run_id, number, job_name, job_id, phase, worst_case_core_hours, wall_seconds, start_t, restart_from, submitted_at)
+            VALUES (@RunId, @Number, @JobName, @JobId, @Phase, @WorstCaseCoreHours, @WallSeconds, @StartT, @RestartFrom, @SubmittedAt) RETURNING id
+            """,
+            segment,
+            transaction);
+
+    /// <summary>Saves every mutable field of a segment.</summary>
+    public static void Save(SqliteConnection connection, SqliteTransaction transaction, Segment segment) =>
+        connection.Execute(
+            """
+            UPDATE segments SET job_id = @JobId, phase = @Phase, job_state = @JobState, native_state = @NativeState, exit_code = @ExitCode, signal = @Signal,
+                elapsed_seconds = @ElapsedSeconds, charged_core_hours = @ChargedCoreHours, cancel_reason = @CancelReason, ended_at = @EndedAt
+            WHERE id = @Id
+            """,
+            segment,
+            transaction);
+
+    /// <summary>Removes a segment that was only an intent (the batch system never received it).</summary>
+    public static void DeleteIntent(SqliteConnection connection, SqliteTransaction transaction, long segmentId) =>
+        connection.Execute("DELETE FROM segments WHERE id = @segmentId AND phase = 'intent'", new { segmentId }, transaction);
+
+    public static void Event(SqliteConnection connection, SqliteTransaction transaction, string at, string runId, string from, string to, string why) =>
+        connection.Execute("INSERT INTO run_events (at, run_id, from_state, to_state, why) VALUES (@at, @runId, @from, @to, @why)", new { at, runId, from, to, why }, transaction);
+
+    /// <summary>Writes a finished run into the run logs (replacing an earlier row of the same id), in the caller's transaction.</summary>
+    public static void LogFinishedRun(SqliteConnection connection, SqliteTransaction transaction, RunLog log, string at)
+    {
+        var c = log.Configuration;
+        connection.Execute(
+            """
+            INSERT INTO run_logs (run_id, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0, level, cores, machine, wall_hours, outcome,
+                core_hours, t_end, orbits, segments, checkpoint_gb, output_gb, started, finished, extra_json, source, imported_at)
+            VALUES (@RunId, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0, @Level, @Cores, @Machine, @WallHours, @Outcome,
+                @CoreHours, @TEnd, NULL, @Segments, @CheckpointGb, @OutputGb, @Started, @Finished, '{}', 'campaign tracking', @At)
+            ON CONFLICT (run_id) DO UPDATE SET wall_hours = excluded.wall_hours, outcome = excluded.outcome, core_hours = excluded.core_hours,
+                t_end = excluded.t_end, segments = excluded.segments, checkpoint_gb = excluded.checkpoint_gb, output_gb = excluded.output_gb,
+                finished = excluded.finished, imported_at = excluded.imported_at
+            """,
+            new
+            {
+                log.RunId,
+                Q = c.Q.Value,
+                Chi1x = c.Chi1.X,
+                Chi1y = c.Chi1.Y,
+                Chi1z = c.Chi1.Z,
+                Chi2x = c.Chi2.X,
+                Chi2y = c.Chi2.Y,
+                Chi2z = c.Chi2.Z,
+                c.Omega0,
+                log.Level,
+                log.Cores,
+                log.Machine,
+                log.WallHours,
+                Outcome = log.Outcome.ToString().ToLowerInvariant(),
+                log.CoreHours,
+                log.TEnd,
+                log.Segments,
+                log.CheckpointGb,
+                log.OutputGb,
+                Started = log.Started?.ToString("O", CultureInfo.InvariantCulture),
+                Finished = log.Finished?.ToString("O", CultureInfo.InvariantCulture),
+                At = at,
+            },
+            transaction);
+    }
+}

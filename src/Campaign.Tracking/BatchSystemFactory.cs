@@ -1,0 +1,34 @@
+using Campaign.Batch;
+using Campaign.Batch.Local;
+using Campaign.Batch.Pbs;
+using Campaign.Batch.Resilience;
+using Campaign.Batch.Slurm;
+using Campaign.Core.Domain;
+using Campaign.Store;
+
+namespace Campaign.Tracking;
+
+/// <summary>One batch system per machine of the workspace, each wrapped in the host's retry/timeout decorator.</summary>
+public static class BatchSystemFactory
+{
+    /// <summary>
+    /// Builds the adapters: local machines get a local runner with its state in LOCAL-RUNNER/MACHINE under the
+    /// workspace and as many slots as the machine's cores per node; Slurm and PBS machines use their commands.
+    /// </summary>
+    public static IReadOnlyDictionary<string, IBatchSystem> Create(Workspace workspace, SupervisorCommand supervisor, RetryOptions retry, TimeProvider time)
+    {
+        var systems = new Dictionary<string, IBatchSystem>(StringComparer.Ordinal);
+        foreach (var machine in workspace.Machines.Values)
+        {
+            IBatchSystem adapter = machine.BatchSystem switch
+            {
+                BatchSystemKind.Local => new LocalBatchSystem(new LocalOptions(Path.Combine(workspace.Root, "local-runner", machine.Name), machine.CoresPerNode, supervisor)),
+                BatchSystemKind.Slurm => new SlurmBatchSystem(new SlurmOptions()),
+                _ => new PbsBatchSystem(new PbsOptions()),
+            };
+            systems[machine.Name] = new ResilientBatchSystem(adapter, retry, time);
+        }
+
+        return systems;
+    }
+}
