@@ -68,6 +68,10 @@ public sealed class CampaignApp
         root.Add(ModelCommand.Build(this));
         root.Add(EstimateCommand.Build(this));
         root.Add(SelectCommand.Build(this));
+        foreach (var command in TrackingCommands.Build(this))
+        {
+            root.Add(command);
+        }
         root.Add(DemoCommand.Build(this));
         return root;
     }
