@@ -42,6 +42,9 @@ public sealed class CampaignApp
         _currentDirectory = currentDirectory;
     }
 
+    /// <summary>The same app writing to other writers (for steps of the demo).</summary>
+    internal CampaignApp With(TextWriter output, TextWriter error) => new(output, error, _time, _currentDirectory);
+
     /// <summary>Parses <paramref name="args"/>, runs the command and returns the exit code.</summary>
     public int Run(string[] args)
     {

@@ -16,11 +16,21 @@ namespace Campaign.Cli.Commands;
 /// </summary>
 internal static class DemoCommand
 {
+    private static void RunNested(CampaignApp app, CommandContext context, CommandContext step, string[] args)
+    {
+        var code = app.With(step.Out, context.Err).Run(step.Json ? args.Append("--json").ToArray() : args);
+        if (code != ExitCodes.Ok)
+        {
+            throw new InvalidOperationException($"demo step 'campaign {string.Join(' ', args.Skip(2))}' failed with exit code {code}");
+        }
+    }
+
     public static Command Build(CampaignApp app)
     {
         var folder = new Argument<string?>("DIR") { Description = "Folder for the demo workspace (default: a new folder under the system's temporary folder)", Arity = ArgumentArity.ZeroOrOne };
         var force = new Option<bool>("--force") { Description = "Write into a folder that is not empty" };
-        var command = new Command("demo", "Create the demo workspace (an invented group) and run the whole job on it") { folder, force };
+        var skipRun = new Option<bool>("--skip-run") { Description = "Stop after saving the plan (do not run it on the local runner)" };
+        var command = new Command("demo", "Create the demo workspace (an invented group) and run the whole job on it") { folder, force, skipRun };
         app.Bind(command, context =>
         {
             var target = context.Parse.GetValue(folder) is { } given
@@ -32,6 +42,7 @@ internal static class DemoCommand
             var logsPath = Path.Combine(target, "run-logs.csv");
             File.WriteAllText(candidatesPath, demo["candidates.csv"]);
             File.WriteAllText(logsPath, demo["run-logs.csv"]);
+            TrackingCommands.WriteSegmentScript(target);
 
             // In --json mode every step writes JSON into its own buffer; the demo prints them as one document.
             var steps = new Dictionary<string, StringWriter>();
@@ -75,6 +86,17 @@ internal static class DemoCommand
             o.WriteLine("== 5. Choose what to run within the allocations (coverage of the parameter space, costs at the 80th percentile) and save the plan");
             SelectCommand.Run(Step("select"), workspace, candidatesPath, "candidates.csv", new SelectOptions(SelectionObjective.Coverage, null, 0.8, Array.Empty<string>(), null, 2, 1500, 10, Save: true));
             o.WriteLine();
+
+            if (!context.Parse.GetValue(skipRun))
+            {
+                o.WriteLine("== 6. Run the plan, scaled down, on this machine's local runner (demo payload; seconds instead of weeks)");
+                var trackArgs = new[] { "--dir", target, "track", "--on", "workbench", "--cores", "1" };
+                var watchArgs = new[] { "--dir", target, "watch", "--interval", "1", "--until-done" };
+                RunNested(app, context, Step("track"), trackArgs);
+                RunNested(app, context, Step("watch"), watchArgs);
+                RunNested(app, context, Step("status"), new[] { "--dir", target, "status" });
+                o.WriteLine();
+            }
 
             if (context.Json)
             {

@@ -16,7 +16,9 @@ internal static class InitCommand
         {
             var target = context.Parse.GetValue(folder) is { } given ? app.Resolve(given) : context.Workspace;
             var template = new WorkspaceTemplate(EmbeddedFiles.Read("templates/campaign.toml"), EmbeddedFiles.Under("profiles/"));
-            var written = WorkspaceCreator.Create(target, template, context.Parse.GetValue(force), context.Time);
+            var written = WorkspaceCreator.Create(target, template, context.Parse.GetValue(force), context.Time).ToList();
+            TrackingCommands.WriteSegmentScript(target);
+            written.Add(Path.Combine(target, "run-segment.sh"));
             if (context.Json)
             {
                 Json.Write(context.Out, new { Workspace = target, Files = written });

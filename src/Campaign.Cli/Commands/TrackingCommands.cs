@@ -24,6 +24,17 @@ internal static class TrackingCommands
         yield return Abandon(app);
     }
 
+    /// <summary>Writes the template batch script (run-segment.sh, executable) into a workspace unless one is there.</summary>
+    public static void WriteSegmentScript(string workspace)
+    {
+        var path = Path.Combine(workspace, "run-segment.sh");
+        if (!File.Exists(path))
+        {
+            File.WriteAllText(path, EmbeddedFiles.Read("templates/run-segment.sh"));
+            File.SetUnixFileMode(path, (UnixFileMode)Convert.ToInt32("755", 8));
+        }
+    }
+
     private static Command Track(CampaignApp app)
     {
         var on = new Option<string?>("--on") { Description = "Run every configuration on this machine instead of the plan's assignment (e.g. a workstation)", HelpName = "MACHINE" };

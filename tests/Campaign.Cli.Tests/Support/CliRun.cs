@@ -5,11 +5,16 @@ namespace Campaign.Cli.Tests.Support;
 /// <summary>Runs the campaign command in-process with captured output.</summary>
 public sealed record CliRun(int ExitCode, string Out, string Err)
 {
-    public static CliRun Of(string currentDirectory, params string[] args)
+    public static CliRun Of(string currentDirectory, params string[] args) => With(FixedTime.Default, currentDirectory, args);
+
+    /// <summary>With the real clock (tracking needs time to pass).</summary>
+    public static CliRun Live(string currentDirectory, params string[] args) => With(TimeProvider.System, currentDirectory, args);
+
+    public static CliRun With(TimeProvider time, string currentDirectory, params string[] args)
     {
         var output = new StringWriter();
         var error = new StringWriter();
-        var code = new CampaignApp(output, error, FixedTime.Default, currentDirectory).Run(args);
+        var code = new CampaignApp(output, error, time, currentDirectory).Run(args);
         return new CliRun(code, output.ToString(), error.ToString());
     }
 
