@@ -1,0 +1,250 @@
+using System.Diagnostics;
+using System.Globalization;
+using System.Text.Json;
+using Campaign.Cli.Tests.Support;
+using Microsoft.Data.Sqlite;
+
+namespace Campaign.Cli.Tests;
+
+/// <summary>
+/// The tracking daemon on the local runner with real detached processes and the demo payload (invented demo data),
+/// with short segments (3 s) so runs need several. These tests take tens of seconds each: they wait for real jobs.
+/// </summary>
+[Collection("tracking")]
+public sealed class TrackingTests : IDisposable
+{
+    private readonly TempFolder _folder = new();
+
+    public void Dispose()
+    {
+        // Leave no job behind: kill every supervisor and payload started from this workspace.
+        foreach (var pidFile in Directory.Exists(Ws("local-runner")) ? Directory.EnumerateFiles(Ws("local-runner"), "*.pid", SearchOption.AllDirectories) : Enumerable.Empty<string>())
+        {
+            if (int.TryParse(File.ReadAllText(pidFile).Split(' ')[0], NumberStyles.None, CultureInfo.InvariantCulture, out var pid))
+            {
+                try
+                {
+                    Process.GetProcessById(pid).Kill(entireProcessTree: true);
+                }
+                catch (Exception e) when (e is ArgumentException or InvalidOperationException or System.ComponentModel.Win32Exception)
+                {
+                }
+            }
+        }
+
+        _folder.Dispose();
+    }
+
+    private string Ws(string relative = "") => Path.Combine(_folder.Path, "ws", relative);
+
+    /// <summary>The demo workspace with its plan saved, tracking the given configurations on the workstation.</summary>
+    private void Prepare(string only, string extraConfig = "")
+    {
+        Assert.Equal(0, CliRun.Of(_folder.Path, "demo", "ws", "--skip-run").ExitCode);
+        if (extraConfig.Length > 0)
+        {
+            File.AppendAllText(Ws("campaign.toml"), extraConfig);
+        }
+
+        var track = CliRun.Live(_folder.Path, "--dir", "ws", "track", "--on", "workbench", "--cores", "1", "--only", only);
+        Assert.True(track.ExitCode == 0, track.Err);
+    }
+
+    private JsonElement Status() => CliRun.Live(_folder.Path, "--dir", "ws", "status", "--json").Json().GetProperty("runs");
+
+    private void TickUntilIdle(TimeSpan limit)
+    {
+        var deadline = DateTime.UtcNow + limit;
+        while (DateTime.UtcNow < deadline)
+        {
+            var tick = CliRun.Live(_folder.Path, "--dir", "ws", "tick", "--json");
+            Assert.True(tick.ExitCode == 0, tick.Err + tick.Out);
+            if (tick.Json().GetProperty("active").GetInt32() == 0)
+            {
+                return;
+            }
+
+            Thread.Sleep(700);
+        }
+
+        Assert.Fail("the campaign did not finish in time: " + Status());
+    }
+
+    /// <summary>Every job the local runner ever received, by name: each name must occur once.</summary>
+    private List<string> SubmittedJobNames() =>
+        Directory.EnumerateFiles(Ws("local-runner"), "request.json", SearchOption.AllDirectories)
+            .Select(f => JsonDocument.Parse(File.ReadAllText(f)).RootElement.GetProperty("Name").GetString()!)
+            .ToList();
+
+    [Fact]
+    public void A_small_campaign_needing_several_segments_per_run_finishes_and_feeds_the_run_logs()
+    {
+        Prepare("sm-q1-a00,sm-q2-a04");
+        TickUntilIdle(TimeSpan.FromSeconds(120));
+        var runs = Status().EnumerateArray().ToList();
+        Assert.Equal(6, runs.Count);
+        foreach (var run in runs)
+        {
+            Assert.Equal("finished", run.GetProperty("state").GetString());
+            Assert.True(run.GetProperty("segments").GetArrayLength() >= 2, run.ToString());
+            Assert.All(run.GetProperty("segments").EnumerateArray(), s => Assert.False(string.IsNullOrEmpty(s.GetProperty("job_id").GetString())));
+        }
+
+        var names = SubmittedJobNames();
+        Assert.Equal(names.Count, names.Distinct().Count());
+        var logs = CliRun.Of(_folder.Path, "--dir", "ws", "logs", "list", "--json").Json().GetProperty("runs").EnumerateArray().Select(r => r.GetProperty("run_id").GetString()).ToList();
+        Assert.Contains("sm-q1-a00.L1", logs);
+        Assert.Contains("sm-q2-a04.L3", logs);
+    }
+
+    [Fact]
+    public void Killing_the_daemon_at_arbitrary_points_loses_nothing_and_submits_no_segment_twice()
+    {
+        Prepare("sm-q1-a06,sm-q2-m04");
+        var (file, argument) = (Path.Combine(AppContext.BaseDirectory, "campaign"), (string?)null);
+        var random = new Random(20261201); // seeded kill points
+        var kills = 0;
+        var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(180);
+        while (DateTime.UtcNow < deadline)
+        {
+            var start = new ProcessStartInfo(file) { RedirectStandardOutput = true, RedirectStandardError = true, UseShellExecute = false };
+            start.Environment["DEMO_STEPS_PER_SECOND"] = "600"; // slower runs: more cycles to kill
+            foreach (var a in new[] { "--dir", Ws(), "tick", "--json" })
+            {
+                start.ArgumentList.Add(a);
+            }
+
+            using var process = Process.Start(start)!;
+            var output = new StringWriter();
+            process.OutputDataReceived += (_, e) => output.WriteLine(e.Data);
+            process.BeginOutputReadLine();
+            if (kills < 20 && random.NextDouble() < 0.7)
+            {
+                Thread.Sleep(random.Next(50, 350));
+                try
+                {
+                    process.Kill(); // SIGKILL, wherever it is
+                    kills++;
+                }
+                catch (InvalidOperationException)
+                {
+                }
+            }
+
+            process.WaitForExit();
+            if (process.ExitCode == 0 && JsonDocument.Parse(output.ToString()).RootElement.GetProperty("active").GetInt32() == 0)
+            {
+                break;
+            }
+
+            Thread.Sleep(300);
+        }
+
+        Assert.True(kills >= 5, $"only {kills} kills happened");
+        Assert.All(Status().EnumerateArray(), r => Assert.Equal("finished", r.GetProperty("state").GetString()));
+        var names = SubmittedJobNames();
+        Assert.Equal(names.Count, names.Distinct().Count());
+        using var connection = new SqliteConnection($"Data Source={Ws("campaign.db")};Pooling=False");
+        connection.Open();
+        using var check = connection.CreateCommand();
+        check.CommandText = "PRAGMA integrity_check";
+        Assert.Equal("ok", check.ExecuteScalar());
+        _ = argument;
+    }
+
+    [Fact]
+    public void A_stalled_run_and_a_run_with_a_growing_constraint_norm_are_held_with_reasons()
+    {
+        Prepare("sm-q1-a00", "\n# (test)\n");
+        // Runs .L1 stalls at t = 800 M; .L2's constraint norm grows as exp(0.02 t); .L3 is healthy.
+        File.WriteAllText(Ws("runs/sm-q1-a00.L1/payload.json"), "{\"stall_at\": 800}");
+        File.WriteAllText(Ws("runs/sm-q1-a00.L2/payload.json"), "{\"instability_rate\": 0.02}");
+        // Long segments (12 s) and a short stall time (0.6 s without new progress), so the stall is seen before a limit.
+        var config = File.ReadAllText(Ws("campaign.toml"))
+            .Replace("stall_minutes = 0.5", "stall_minutes = 0.01", StringComparison.Ordinal)
+            .Replace("segment_minutes = 0.05", "segment_minutes = 0.2", StringComparison.Ordinal);
+        File.WriteAllText(Ws("campaign.toml"), config);
+        TickUntilIdle(TimeSpan.FromSeconds(120));
+        var runs = Status().EnumerateArray().ToDictionary(r => r.GetProperty("id").GetString()!);
+        Assert.True(runs["sm-q1-a00.L1"].GetProperty("state").GetString() == "held", runs["sm-q1-a00.L1"].ToString());
+        Assert.True(runs["sm-q1-a00.L2"].GetProperty("state").GetString() == "held", runs["sm-q1-a00.L2"].ToString());
+        Assert.Contains("no progress for", runs["sm-q1-a00.L1"].GetProperty("reason").GetString());
+        Assert.Contains("again after a restart", runs["sm-q1-a00.L1"].GetProperty("reason").GetString());
+        Assert.Equal("held", runs["sm-q1-a00.L2"].GetProperty("state").GetString());
+        Assert.StartsWith("constraint norm growing steadily: rate 0.02 per M", runs["sm-q1-a00.L2"].GetProperty("reason").GetString());
+        Assert.Equal("finished", runs["sm-q1-a00.L3"].GetProperty("state").GetString());
+
+        // A human releases the stalled run after fixing it.
+        File.Delete(Ws("runs/sm-q1-a00.L1/payload.json"));
+        Assert.Equal(0, CliRun.Live(_folder.Path, "--dir", "ws", "release", "sm-q1-a00.L1").ExitCode);
+        TickUntilIdle(TimeSpan.FromSeconds(60));
+        Assert.Equal("finished", Status().EnumerateArray().Single(r => r.GetProperty("id").GetString() == "sm-q1-a00.L1").GetProperty("state").GetString());
+    }
+
+    [Fact]
+    public void The_budget_guard_stops_submission_at_the_line_and_says_which_runs_wait()
+    {
+        // One segment on the workstation may charge 1 core x 3 s = 1/1200 core-hour; the allocation has room for two.
+        Prepare("sm-q1-a00", "\n[[allocation]]\nmachine = \"workbench\"\namount = 0.0018\nunit = \"core-hours\"\nstart = 2025-01-01\nend = 2030-12-31\n");
+        var tick = CliRun.Live(_folder.Path, "--dir", "ws", "tick", "--json").Json();
+        Assert.Equal(2, tick.GetProperty("submitted").GetInt32());
+        var runs = Status().EnumerateArray().ToList();
+        var waiting = runs.Where(r => r.GetProperty("state").GetString() == "waiting_budget").ToList();
+        Assert.Single(waiting);
+        Assert.StartsWith("waiting for budget: the next segment may charge 0 core-hours; 0 left on workbench", waiting[0].GetProperty("reason").GetString());
+    }
+
+    [Fact]
+    public void The_payload_resumed_from_a_checkpoint_ends_in_exactly_the_state_of_an_uninterrupted_run()
+    {
+        Assert.Equal(0, CliRun.Of(_folder.Path, "demo", "ws", "--skip-run").ExitCode);
+        string RunFolder(string name)
+        {
+            var folder = Path.Combine(_folder.Path, name);
+            Directory.CreateDirectory(folder);
+            File.WriteAllText(Path.Combine(folder, "run.json"), "{\"q\": 3, \"chi1\": [0, 0, 0.6], \"chi2\": [0, 0, -0.2], \"omega0\": 0.02, \"target_length\": 3000, \"end_of_inspiral_x\": 0.16666666666666666}");
+            return folder;
+        }
+
+        Process Payload(string folder, string? restart, double pace)
+        {
+            var start = new ProcessStartInfo(Path.Combine(AppContext.BaseDirectory, "campaign")) { UseShellExecute = false, WorkingDirectory = folder };
+            start.ArgumentList.Add("__demo-payload");
+            start.ArgumentList.Add(folder);
+            start.Environment["DEMO_STEPS_PER_SECOND"] = pace.ToString(CultureInfo.InvariantCulture);
+            start.Environment["DEMO_CHECKPOINT_EVERY"] = "100";
+            if (restart is not null)
+            {
+                start.Environment["CAMPAIGN_RESTART"] = restart;
+            }
+
+            return Process.Start(start)!;
+        }
+
+        var whole = RunFolder("whole");
+        using (var p = Payload(whole, null, 0))
+        {
+            p.WaitForExit();
+            Assert.Equal(0, p.ExitCode);
+        }
+
+        var pieces = RunFolder("pieces");
+        for (var i = 0; i < 3; i++)
+        {
+            using var p = Payload(pieces, i == 0 ? null : "newest", 3000);
+            Thread.Sleep(300);
+            Assert.True(Campaign.Batch.Tests.Support.Signals.Send(p.Id, 10)); // SIGUSR1: checkpoint and stop
+            p.WaitForExit();
+            Assert.Equal(0, p.ExitCode);
+        }
+
+        using (var p = Payload(pieces, "newest", 0))
+        {
+            p.WaitForExit();
+        }
+
+        Assert.True(File.Exists(Path.Combine(pieces, "DONE")));
+        Assert.Equal(File.ReadAllText(Path.Combine(whole, "final.json")), File.ReadAllText(Path.Combine(pieces, "final.json")));
+        Assert.True(Directory.EnumerateFiles(Path.Combine(pieces, "checkpoints"), "*.ok").Count() >= 3);
+    }
+}
