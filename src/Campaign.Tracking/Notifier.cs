@@ -7,14 +7,19 @@ namespace Campaign.Tracking;
 public sealed record Notice(string At, string RunId, string From, string To, string Why);
 
 /// <summary>
-/// Runs the configured notification command once per notice, with the notice as JSON on standard input
-/// (argument list, no shell). A failing command is reported, never fatal.
+/// Runs the configured notification command once per notice, in the workspace folder, with the notice as JSON
+/// on standard input (argument list, no shell). A failing command is reported, never fatal.
 /// </summary>
 public sealed class Notifier
 {
     private readonly IReadOnlyList<string> _command;
+    private readonly string _folder;
 
-    public Notifier(IReadOnlyList<string> command) => _command = command;
+    public Notifier(IReadOnlyList<string> command, string folder)
+    {
+        _command = command;
+        _folder = folder;
+    }
 
     /// <summary>Sends the notices; returns one message per failure.</summary>
     public async Task<IReadOnlyList<string>> SendAsync(IReadOnlyList<Notice> notices, CancellationToken cancellationToken)
@@ -29,7 +34,7 @@ public sealed class Notifier
         {
             try
             {
-                var start = new ProcessStartInfo(_command[0]) { RedirectStandardInput = true, UseShellExecute = false };
+                var start = new ProcessStartInfo(_command[0]) { RedirectStandardInput = true, UseShellExecute = false, WorkingDirectory = _folder };
                 foreach (var argument in _command.Skip(1))
                 {
                     start.ArgumentList.Add(argument);

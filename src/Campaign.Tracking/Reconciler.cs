@@ -74,7 +74,7 @@ public sealed class Reconciler
 
         await SubmitNeeded(runs.Values.OrderBy(r => r.Position).ToList(), cancellationToken).ConfigureAwait(false);
 
-        var failures = await new Notifier(Settings.NotifyCommand).SendAsync(_notices, cancellationToken).ConfigureAwait(false);
+        var failures = await new Notifier(Settings.NotifyCommand, _workspace.Root).SendAsync(_notices, cancellationToken).ConfigureAwait(false);
         _messages.AddRange(failures);
         var all = TrackingStore.Runs(Db);
         return new TickReport(_submitted, _ended, _finished, _held, all.Count(r => r.RunState == RunState.WaitingBudget), all.Count(r => r.RunState.IsActive()), _queries, _messages.ToList());

@@ -80,6 +80,9 @@ public sealed class TrackingTests : IDisposable
     public void A_small_campaign_needing_several_segments_per_run_finishes_and_feeds_the_run_logs()
     {
         Prepare("sm-q1-a00,sm-q2-a04");
+        // Every state change is also sent to a notification command as JSON on its standard input.
+        var config = File.ReadAllText(Ws("campaign.toml")).Replace("[tracking]\n", "[tracking]\nnotify_command = [\"/bin/sh\", \"-c\", \"cat >> notices.jsonl; echo >> notices.jsonl\"]\n", StringComparison.Ordinal);
+        File.WriteAllText(Ws("campaign.toml"), config);
         TickUntilIdle(TimeSpan.FromSeconds(120));
         var runs = Status().EnumerateArray().ToList();
         Assert.Equal(6, runs.Count);
@@ -95,6 +98,8 @@ public sealed class TrackingTests : IDisposable
         var logs = CliRun.Of(_folder.Path, "--dir", "ws", "logs", "list", "--json").Json().GetProperty("runs").EnumerateArray().Select(r => r.GetProperty("run_id").GetString()).ToList();
         Assert.Contains("sm-q1-a00.L1", logs);
         Assert.Contains("sm-q2-a04.L3", logs);
+        var notices = File.ReadAllLines(Ws("notices.jsonl")).Where(l => l.Length > 0).Select(l => JsonDocument.Parse(l).RootElement).ToList();
+        Assert.Equal(6, notices.Count(n => n.GetProperty("to").GetString() == "finished"));
     }
 
     [Fact]

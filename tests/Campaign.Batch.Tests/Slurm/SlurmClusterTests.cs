@@ -20,7 +20,7 @@ public sealed class SlurmClusterTests : IDisposable
     [SlurmFact]
     public async Task A_segment_that_completes_reports_exit_0_and_its_environment_reaches_the_script()
     {
-        var slurm = SlurmCluster.Adapter();
+        var slurm = SlurmAdapter.Create();
         var script = _jobs.Script("ok", "echo \"restart=$CAMPAIGN_RESTART\"; exit 0");
         var id = await slurm.SubmitAsync(_jobs.Request("ok", script, environment: new Dictionary<string, string> { ["CAMPAIGN_RESTART"] = "/ck/dir with space" }), CancellationToken.None);
         var status = (await Jobs.WaitFinal(slurm, new[] { id }, TimeSpan.FromSeconds(60)))[id];
@@ -35,7 +35,7 @@ public sealed class SlurmClusterTests : IDisposable
     [SlurmFact]
     public async Task A_job_is_found_by_its_name_and_an_unknown_name_is_not()
     {
-        var slurm = SlurmCluster.Adapter();
+        var slurm = SlurmAdapter.Create();
         var id = await slurm.SubmitAsync(_jobs.Request("findme", _jobs.Script("findme", "exit 0")), CancellationToken.None);
         Assert.Equal(id, await slurm.FindAsync(JobName.For("findme", 1), CancellationToken.None));
         Assert.Null(await slurm.FindAsync(JobName.For("nobody-" + Guid.NewGuid().ToString("N")[..8], 1), CancellationToken.None));
@@ -44,7 +44,7 @@ public sealed class SlurmClusterTests : IDisposable
     [SlurmFact]
     public async Task A_segment_that_fails_reports_its_exit_code()
     {
-        var slurm = SlurmCluster.Adapter();
+        var slurm = SlurmAdapter.Create();
         var id = await slurm.SubmitAsync(_jobs.Request("fail", _jobs.Script("fail", "exit 3")), CancellationToken.None);
         var status = (await Jobs.WaitFinal(slurm, new[] { id }, TimeSpan.FromSeconds(60)))[id];
         Assert.Equal(JobState.Failed, status.State);
@@ -54,7 +54,7 @@ public sealed class SlurmClusterTests : IDisposable
     [SlurmFact]
     public async Task A_cancelled_segment_is_reported_cancelled_and_cancelling_again_is_harmless()
     {
-        var slurm = SlurmCluster.Adapter();
+        var slurm = SlurmAdapter.Create();
         var id = await slurm.SubmitAsync(_jobs.Request("cancel", _jobs.Script("cancel", "sleep 300")), CancellationToken.None);
         await Jobs.WaitFinal(slurm, new[] { id }, TimeSpan.FromSeconds(30), s => s.State == JobState.Running);
         await slurm.CancelAsync(id, CancellationToken.None);
@@ -66,7 +66,7 @@ public sealed class SlurmClusterTests : IDisposable
     [SlurmFact]
     public async Task An_afterany_chain_starts_the_next_segment_only_after_the_first_ends_in_any_state()
     {
-        var slurm = SlurmCluster.Adapter();
+        var slurm = SlurmAdapter.Create();
         var first = await slurm.SubmitAsync(_jobs.Request("first", _jobs.Script("first", "sleep 3; date +%s%N > first.end; exit 1")), CancellationToken.None);
         var second = await slurm.SubmitAsync(_jobs.Request("second", _jobs.Script("second", "date +%s%N > second.start"), afterAny: first), CancellationToken.None);
         var pending = await slurm.QueryAsync(new[] { second }, CancellationToken.None);
@@ -82,7 +82,7 @@ public sealed class SlurmClusterTests : IDisposable
     [SlurmFact]
     public async Task Many_jobs_are_queried_with_one_command_and_unknown_ids_come_back_missing()
     {
-        var slurm = SlurmCluster.Adapter();
+        var slurm = SlurmAdapter.Create();
         var script = _jobs.Script("many", "sleep 20");
         var ids = new List<string>();
         for (var i = 0; i < 5; i++)
@@ -123,7 +123,7 @@ public sealed class SlurmSlowTests : IDisposable
     [SlurmFact]
     public async Task A_segment_catches_the_warning_writes_a_checkpoint_and_times_out_and_a_purged_job_is_still_found()
     {
-        var slurm = SlurmCluster.Adapter();
+        var slurm = SlurmAdapter.Create();
         var script = _jobs.Script("limit", "trap 'echo checkpoint > checkpoint.txt' USR1\nwhile true; do sleep 1; done");
         var id = await slurm.SubmitAsync(_jobs.Request("limit", script, minutes: 1, warning: new WarningSignal("USR1", 30)), CancellationToken.None);
         var shortId = await slurm.SubmitAsync(_jobs.Request("short", _jobs.Script("short", "exit 0")), CancellationToken.None);

@@ -1,11 +1,12 @@
 using System.Diagnostics;
 
-namespace Campaign.Batch.Tests.Support;
+namespace Campaign.Testing;
 
 /// <summary>
 /// The real one-node Slurm cluster the Slurm tests run against. Uses SLURM_CONF when it points at a working
 /// cluster; otherwise, as root, starts one with .ci/slurm/start-cluster (installing Debian's packages when
-/// missing) and stops it when the test process exits. Without root the tests are skipped with the reason;
+/// missing) and stops it when the last test process using it exits (test assemblies run in parallel processes
+/// and share one cluster). Without root the tests are skipped with the reason;
 /// under CI (CI=true) they are never skipped, so a cluster that cannot start fails them.
 /// </summary>
 public static class SlurmCluster
@@ -42,9 +43,6 @@ public static class SlurmCluster
         }
     }
 
-    /// <summary>The adapter for the test cluster.</summary>
-    public static Campaign.Batch.Slurm.SlurmBatchSystem Adapter() => new(new Campaign.Batch.Slurm.SlurmOptions { ConfigFile = ConfigFile });
-
     private static (string?, string?) Start()
     {
         if (Environment.GetEnvironmentVariable("SLURM_CONF") is { Length: > 0 } existing && Works(existing))
@@ -54,13 +52,14 @@ public static class SlurmCluster
 
         var state = Path.Combine(Path.GetTempPath(), "campaign-slurm-tests");
         var script = Path.Combine(RepositoryRoot.Path, ".ci", "slurm", "start-cluster");
-        var (code, output) = Run(script, state);
+        var me = Environment.ProcessId.ToString(System.Globalization.CultureInfo.InvariantCulture);
+        var (code, output) = Run(script, new[] { state }, me);
         if (code != 0)
         {
             return (null, $"{script} exited with {code}: {output}");
         }
 
-        AppDomain.CurrentDomain.ProcessExit += (_, _) => Run(Path.Combine(RepositoryRoot.Path, ".ci", "slurm", "stop-cluster"), state);
+        AppDomain.CurrentDomain.ProcessExit += (_, _) => Run(Path.Combine(RepositoryRoot.Path, ".ci", "slurm", "stop-cluster"), new[] { state, "--user", me }, me);
         var config = Path.Combine(state, "slurm.conf");
         return Works(config) ? (config, null) : (null, "the cluster started but sinfo does not answer");
     }
@@ -82,14 +81,24 @@ public static class SlurmCluster
         }
     }
 
-    private static (int Code, string Output) Run(string file, string argument)
+    private static (int Code, string Output) Run(string file, string[] arguments, string user)
     {
         var start = new ProcessStartInfo(file) { RedirectStandardOutput = true, RedirectStandardError = true };
-        start.ArgumentList.Add(argument);
+        foreach (var argument in arguments)
+        {
+            start.ArgumentList.Add(argument);
+        }
+
+        start.Environment["CAMPAIGN_SLURM_USER"] = user;
         using var process = Process.Start(start)!;
         var output = process.StandardOutput.ReadToEndAsync();
         var error = process.StandardError.ReadToEndAsync();
-        process.WaitForExit();
+        if (!process.WaitForExit(180_000))
+        {
+            process.Kill(entireProcessTree: true);
+            return (124, "timed out after 180 s");
+        }
+
         return (process.ExitCode, output.Result + error.Result);
     }
 }
