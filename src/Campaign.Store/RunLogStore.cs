@@ -31,57 +31,62 @@ public static class RunLogStore
         using var transaction = connection.BeginTransaction();
         foreach (var row in rows)
         {
-            var log = row.Log;
-            var c = log.Configuration;
-            connection.Execute(
-                """
-                INSERT INTO run_logs (run_id, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0, level, cores, machine, wall_hours, outcome,
-                    core_hours, t_end, orbits, segments, checkpoint_gb, output_gb, started, finished, extra_json, source, imported_at)
-                VALUES (@RunId, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0, @Level, @Cores, @Machine, @WallHours, @Outcome,
-                    @CoreHours, @TEnd, @Orbits, @Segments, @CheckpointGb, @OutputGb, @Started, @Finished, @Extra, @Source, @Now)
-                ON CONFLICT (run_id) DO UPDATE SET
-                    q = excluded.q, chi1x = excluded.chi1x, chi1y = excluded.chi1y, chi1z = excluded.chi1z, chi2x = excluded.chi2x,
-                    chi2y = excluded.chi2y, chi2z = excluded.chi2z, omega0 = excluded.omega0, level = excluded.level, cores = excluded.cores,
-                    machine = excluded.machine, wall_hours = excluded.wall_hours, outcome = excluded.outcome, core_hours = excluded.core_hours,
-                    t_end = excluded.t_end, orbits = excluded.orbits, segments = excluded.segments, checkpoint_gb = excluded.checkpoint_gb,
-                    output_gb = excluded.output_gb, started = excluded.started, finished = excluded.finished, extra_json = excluded.extra_json,
-                    source = excluded.source, imported_at = excluded.imported_at
-                """,
-                new
-                {
-                    log.RunId,
-                    Q = c.Q.Value,
-                    Chi1x = c.Chi1.X,
-                    Chi1y = c.Chi1.Y,
-                    Chi1z = c.Chi1.Z,
-                    Chi2x = c.Chi2.X,
-                    Chi2y = c.Chi2.Y,
-                    Chi2z = c.Chi2.Z,
-                    c.Omega0,
-                    log.Level,
-                    log.Cores,
-                    log.Machine,
-                    log.WallHours,
-                    Outcome = log.Outcome.ToString().ToLowerInvariant(),
-                    log.CoreHours,
-                    log.TEnd,
-                    log.Orbits,
-                    log.Segments,
-                    log.CheckpointGb,
-                    log.OutputGb,
-                    Started = log.Started?.ToString("O", CultureInfo.InvariantCulture),
-                    Finished = log.Finished?.ToString("O", CultureInfo.InvariantCulture),
-                    Extra = JsonSerializer.Serialize(row.Extra),
-                    Source = source,
-                    Now = now,
-                },
-                transaction);
+            Upsert(connection, transaction, row.Log, JsonSerializer.Serialize(row.Extra), source, now);
         }
 
         var result = new ImportResult(rows.Count - clashes.Count, clashes.Count);
         EventLog.Append(connection, transaction, time, "logs.import", null, $"{result.Added} runs added, {result.Replaced} replaced from {source}");
         transaction.Commit();
         return result;
+    }
+
+    /// <summary>Inserts a run, or replaces the stored run of the same id, in the caller's transaction.</summary>
+    public static void Upsert(SqliteConnection connection, SqliteTransaction transaction, RunLog log, string extraJson, string source, string at)
+    {
+        var c = log.Configuration;
+        connection.Execute(
+            """
+            INSERT INTO run_logs (run_id, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0, level, cores, machine, wall_hours, outcome,
+                core_hours, t_end, orbits, segments, checkpoint_gb, output_gb, started, finished, extra_json, source, imported_at)
+            VALUES (@RunId, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0, @Level, @Cores, @Machine, @WallHours, @Outcome,
+                @CoreHours, @TEnd, @Orbits, @Segments, @CheckpointGb, @OutputGb, @Started, @Finished, @Extra, @Source, @At)
+            ON CONFLICT (run_id) DO UPDATE SET
+                q = excluded.q, chi1x = excluded.chi1x, chi1y = excluded.chi1y, chi1z = excluded.chi1z, chi2x = excluded.chi2x,
+                chi2y = excluded.chi2y, chi2z = excluded.chi2z, omega0 = excluded.omega0, level = excluded.level, cores = excluded.cores,
+                machine = excluded.machine, wall_hours = excluded.wall_hours, outcome = excluded.outcome, core_hours = excluded.core_hours,
+                t_end = excluded.t_end, orbits = excluded.orbits, segments = excluded.segments, checkpoint_gb = excluded.checkpoint_gb,
+                output_gb = excluded.output_gb, started = excluded.started, finished = excluded.finished, extra_json = excluded.extra_json,
+                source = excluded.source, imported_at = excluded.imported_at
+            """,
+            new
+            {
+                log.RunId,
+                Q = c.Q.Value,
+                Chi1x = c.Chi1.X,
+                Chi1y = c.Chi1.Y,
+                Chi1z = c.Chi1.Z,
+                Chi2x = c.Chi2.X,
+                Chi2y = c.Chi2.Y,
+                Chi2z = c.Chi2.Z,
+                c.Omega0,
+                log.Level,
+                log.Cores,
+                log.Machine,
+                log.WallHours,
+                Outcome = log.Outcome.ToString().ToLowerInvariant(),
+                log.CoreHours,
+                log.TEnd,
+                log.Orbits,
+                log.Segments,
+                log.CheckpointGb,
+                log.OutputGb,
+                Started = log.Started?.ToString("O", CultureInfo.InvariantCulture),
+                Finished = log.Finished?.ToString("O", CultureInfo.InvariantCulture),
+                Extra = extraJson,
+                Source = source,
+                At = at,
+            },
+            transaction);
     }
 
     /// <summary>Every stored run, ordered by id.</summary>

@@ -206,44 +206,6 @@ public static class TrackingStore
         connection.Execute("INSERT INTO run_events (at, run_id, from_state, to_state, why) VALUES (@at, @runId, @from, @to, @why)", new { at, runId, from, to, why }, transaction);
 
     /// <summary>Writes a finished run into the run logs (replacing an earlier row of the same id), in the caller's transaction.</summary>
-    public static void LogFinishedRun(SqliteConnection connection, SqliteTransaction transaction, RunLog log, string at)
-    {
-        var c = log.Configuration;
-        connection.Execute(
-            """
-            INSERT INTO run_logs (run_id, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0, level, cores, machine, wall_hours, outcome,
-                core_hours, t_end, orbits, segments, checkpoint_gb, output_gb, started, finished, extra_json, source, imported_at)
-            VALUES (@RunId, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0, @Level, @Cores, @Machine, @WallHours, @Outcome,
-                @CoreHours, @TEnd, NULL, @Segments, @CheckpointGb, @OutputGb, @Started, @Finished, '{}', 'campaign tracking', @At)
-            ON CONFLICT (run_id) DO UPDATE SET wall_hours = excluded.wall_hours, outcome = excluded.outcome, core_hours = excluded.core_hours,
-                t_end = excluded.t_end, segments = excluded.segments, checkpoint_gb = excluded.checkpoint_gb, output_gb = excluded.output_gb,
-                finished = excluded.finished, imported_at = excluded.imported_at
-            """,
-            new
-            {
-                log.RunId,
-                Q = c.Q.Value,
-                Chi1x = c.Chi1.X,
-                Chi1y = c.Chi1.Y,
-                Chi1z = c.Chi1.Z,
-                Chi2x = c.Chi2.X,
-                Chi2y = c.Chi2.Y,
-                Chi2z = c.Chi2.Z,
-                c.Omega0,
-                log.Level,
-                log.Cores,
-                log.Machine,
-                log.WallHours,
-                Outcome = log.Outcome.ToString().ToLowerInvariant(),
-                log.CoreHours,
-                log.TEnd,
-                log.Segments,
-                log.CheckpointGb,
-                log.OutputGb,
-                Started = log.Started?.ToString("O", CultureInfo.InvariantCulture),
-                Finished = log.Finished?.ToString("O", CultureInfo.InvariantCulture),
-                At = at,
-            },
-            transaction);
-    }
+    public static void LogFinishedRun(SqliteConnection connection, SqliteTransaction transaction, RunLog log, string at) =>
+        RunLogStore.Upsert(connection, transaction, log, "{}", "campaign tracking", at);
 }

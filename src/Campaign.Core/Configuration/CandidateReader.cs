@@ -60,20 +60,8 @@ public static class CandidateReader
                 cells.Problem("id", id, $"a unique id; it is already used on line {ids[id].ToString(CultureInfo.InvariantCulture)}");
             }
 
-            var draft = new BinaryConfigurationDraft
-            {
-                Name = id ?? "",
-                Q = cells.Number("q"),
-                Chi1X = cells.Number("chi1x") ?? 0,
-                Chi1Y = cells.Number("chi1y") ?? 0,
-                Chi1Z = cells.Number("chi1z") ?? 0,
-                Chi2X = cells.Number("chi2x") ?? 0,
-                Chi2Y = cells.Number("chi2y") ?? 0,
-                Chi2Z = cells.Number("chi2z") ?? 0,
-                Omega0 = cells.Number("omega0"),
-                Orbits = cells.Number("orbits"),
-                Cores = cells.Integer("cores") ?? defaults.Cores,
-            };
+            var draft = cells.Draft(id ?? "");
+            draft.Cores = cells.Integer("cores") ?? defaults.Cores;
             var levels = cells.Levels("levels");
             draft.Levels.AddRange(levels ?? defaults.Levels.Select(l => (long)l));
             var machines = (cells.Text("cluster") ?? "").Split(';', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries).Distinct().ToList();

@@ -110,6 +110,21 @@ public sealed class RowCells
         return levels;
     }
 
+    /// <summary>A configuration draft from the columns q, chi1x ... chi2z, omega0 and orbits (absent spin columns are 0).</summary>
+    public Domain.BinaryConfigurationDraft Draft(string name) => new()
+    {
+        Name = name,
+        Q = Number("q"),
+        Chi1X = Number("chi1x") ?? 0,
+        Chi1Y = Number("chi1y") ?? 0,
+        Chi1Z = Number("chi1z") ?? 0,
+        Chi2X = Number("chi2x") ?? 0,
+        Chi2Y = Number("chi2y") ?? 0,
+        Chi2Z = Number("chi2z") ?? 0,
+        Omega0 = Number("omega0"),
+        Orbits = Number("orbits"),
+    };
+
     /// <summary>
     /// Reports the problems of a configuration draft at their columns ("|chi1|" at chi1z, "level" at levels),
     /// skipping columns whose cell was already reported unreadable.

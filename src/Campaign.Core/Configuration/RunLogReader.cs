@@ -46,18 +46,8 @@ public static class RunLogReader
                 cells.Problem("run_id", id, $"a unique run id; it is already used on line {ids[id].ToString(CultureInfo.InvariantCulture)}");
             }
 
-            var draft = new BinaryConfigurationDraft
-            {
-                Name = id,
-                Q = cells.Number("q"),
-                Chi1X = cells.Number("chi1x") ?? 0,
-                Chi1Y = cells.Number("chi1y") ?? 0,
-                Chi1Z = cells.Number("chi1z") ?? 0,
-                Chi2X = cells.Number("chi2x") ?? 0,
-                Chi2Y = cells.Number("chi2y") ?? 0,
-                Chi2Z = cells.Number("chi2z") ?? 0,
-                Omega0 = cells.Number("omega0"),
-            };
+            var draft = cells.Draft(id);
+            draft.Orbits = null; // in a run log, orbits is what was simulated, not an input
             cells.Report(draft.Validate(settings));
 
             var level = Bounded(cells, "level", cells.Integer("level"), 0, RunSpec.MaximumLevel, required: true);
