@@ -1,0 +1,295 @@
+using Campaign.Core.CostModel;
+using MathNet.Numerics.Distributions;
+using MathNet.Numerics.LinearAlgebra;
+
+namespace Campaign.Core.Forecast;
+
+/// <summary>
+/// A seeded Monte Carlo discrete-event simulation of the rest of a campaign. Each replica draws one coefficient
+/// vector of the cost model for all runs (shared parameter uncertainty) and a residual per run; each run's
+/// remaining wall time is split into segments by its machine's wall-time limit (less the checkpoint margin);
+/// every segment waits in its machine's queue (a log-normal wait with the profile's median and 90th
+/// percentile), within the limits on jobs queued and running; a segment fails with the learned probability,
+/// losing its work; a segment is started only while the machine's allocation can still cover its worst case
+/// and before the allocation ends (as the tracker's budget guard does). See docs/forecast.md.
+/// </summary>
+public static class CampaignForecaster
+{
+    /// <summary>Runs the forecast from <paramref name="start"/>.</summary>
+    public static ForecastResult Run(
+        IReadOnlyList<ForecastRun> runs,
+        IReadOnlyDictionary<string, ForecastMachine> machines,
+        FittedCostModel? model,
+        DateTimeOffset start,
+        ForecastOptions options)
+    {
+        var replicas = options.Replicas;
+        var random = new Random(options.Seed);
+        var n = runs.Count;
+        var finish = new double[replicas, n];
+        var segments = new double[n];
+        var windows = machines.Values
+            .Where(m => m.Allocation is not null)
+            .SelectMany(m => WindowsOf(m))
+            .ToList();
+        var windowCharge = new double[windows.Count, replicas];
+        var fits = 0;
+
+        Matrix<double>? cholesky = null;
+        Vector<double>? beta = null;
+        if (model is not null)
+        {
+            var p = model.Coefficients.Length;
+            cholesky = Matrix<double>.Build.Dense(p, p, (i, j) => model.UnscaledCovariance[i][j] * model.ResidualSd * model.ResidualSd).Cholesky().Factor;
+            beta = Vector<double>.Build.DenseOfArray(model.Coefficients);
+        }
+
+        var byMachine = Enumerable.Range(0, n).GroupBy(i => runs[i].Machine).OrderBy(g => g.Key, StringComparer.Ordinal).ToList();
+        var z = new double[beta?.Count ?? 0];
+        var remaining = new double[n];
+        for (var r = 0; r < replicas; r++)
+        {
+            Vector<double>? b = null;
+            if (beta is not null)
+            {
+                for (var j = 0; j < z.Length; j++)
+                {
+                    z[j] = Normal.Sample(random, 0, 1);
+                }
+
+                b = beta + cholesky! * Vector<double>.Build.DenseOfArray(z);
+            }
+
+            for (var i = 0; i < n; i++)
+            {
+                var run = runs[i];
+                double coreHours;
+                if (run.FeatureRow is { } x && b is not null)
+                {
+                    var y = run.LogOffset;
+                    for (var j = 0; j < x.Length; j++)
+                    {
+                        y += x[j] * b[j];
+                    }
+
+                    coreHours = Math.Exp(y + Normal.Sample(random, 0, model!.ResidualSd));
+                }
+                else
+                {
+                    coreHours = run.GivenCoreHours ?? 0;
+                }
+
+                remaining[i] = coreHours / run.Cores * (1 - run.DoneFraction);
+            }
+
+            var allFit = true;
+            foreach (var group in byMachine)
+            {
+                var machine = machines[group.Key];
+                allFit &= SimulateMachine(group.ToArray(), runs, machine, remaining, start, options, random, r, finish, segments, windows, windowCharge);
+            }
+
+            fits += allFit ? 1 : 0;
+        }
+
+        var runForecasts = new List<RunForecast>();
+        var campaignFinish = new double[replicas];
+        for (var r = 0; r < replicas; r++)
+        {
+            var last = 0.0;
+            for (var i = 0; i < n; i++)
+            {
+                last = Math.Max(last, finish[r, i]);
+            }
+
+            campaignFinish[r] = last;
+        }
+
+        for (var i = 0; i < n; i++)
+        {
+            var times = new double[replicas];
+            for (var r = 0; r < replicas; r++)
+            {
+                times[r] = finish[r, i];
+            }
+
+            var machine = machines[runs[i].Machine];
+            var end = machine.Allocation is { } a ? Hours(start, a.End.ToDateTime(TimeOnly.MaxValue, DateTimeKind.Utc)) : double.PositiveInfinity;
+            var late = times.Count(t => t > end) / (double)replicas;
+            runForecasts.Add(new RunForecast(runs[i].Id, runs[i].Machine, Quantiles(times, start), late, segments[i] / replicas));
+        }
+
+        var windowForecasts = windows.Select((w, k) =>
+        {
+            var charges = Enumerable.Range(0, replicas).Select(r => windowCharge[k, r]).Order().ToArray();
+            return new WindowForecast(w.Machine, w.Start, w.End, w.Amount, charges.Average(), Quantile(charges, 0.1), Quantile(charges, 0.9),
+                charges.Count(c => c > w.Amount) / (double)replicas, charges.Count(c => c < 0.9 * w.Amount) / (double)replicas);
+        }).ToList();
+        return new ForecastResult(start, replicas, Quantiles(campaignFinish, start), fits / (double)replicas, runForecasts, windowForecasts);
+    }
+
+    private sealed record Window(string Machine, DateOnly Start, DateOnly End, double Amount, double StartHour, double EndHour);
+
+    private static IEnumerable<Window> WindowsOf(ForecastMachine machine)
+    {
+        var a = machine.Allocation!;
+        var factor = a.Unit == Domain.AllocationUnit.CoreHours ? 1 : machine.Profile.CoresPerNode;
+        if (a.Windows.Count == 0)
+        {
+            yield return new Window(machine.Profile.Name, a.Start, a.End, a.Amount * factor, 0, 0);
+            yield break;
+        }
+
+        foreach (var w in a.Windows)
+        {
+            yield return new Window(machine.Profile.Name, w.Start, w.End, w.Amount * factor, 0, 0);
+        }
+    }
+
+    /// <summary>One machine in one replica; returns true when every run on it finished within its allocation.</summary>
+    private static bool SimulateMachine(int[] runIndices, IReadOnlyList<ForecastRun> runs, ForecastMachine machine, double[] remaining, DateTimeOffset start,
+        ForecastOptions options, Random random, int replica, double[,] finish, double[] segmentCount, IReadOnlyList<Window> windows, double[,] windowCharge)
+    {
+        var profile = machine.Profile;
+        var usable = Math.Max(profile.WallLimitHours - options.CheckpointMarginHours, profile.WallLimitHours / 2);
+        var allocation = machine.Allocation;
+        var budget = allocation is null ? double.PositiveInfinity : allocation.CoreHours(profile) - machine.AlreadyCharged;
+        var allocationEnd = allocation is null ? double.PositiveInfinity : Hours(start, allocation.End.ToDateTime(TimeOnly.MaxValue, DateTimeKind.Utc));
+        var myWindows = Enumerable.Range(0, windows.Count).Where(k => windows[k].Machine == profile.Name).ToArray();
+        var windowHours = myWindows.Select(k => (Start: Hours(start, windows[k].Start.ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc)), End: Hours(start, windows[k].End.ToDateTime(TimeOnly.MaxValue, DateTimeKind.Utc)))).ToArray();
+        var sigma = profile.QueueWaitMedianHours > 0 && profile.QueueWaitP90Hours > profile.QueueWaitMedianHours ? Math.Log(profile.QueueWaitP90Hours / profile.QueueWaitMedianHours) / 1.2815515655446004 : 0;
+        double Wait() => profile.QueueWaitMedianHours <= 0 ? 0 : profile.QueueWaitMedianHours * Math.Exp(sigma * Normal.Sample(random, 0, 1));
+
+        var backlog = new Queue<int>();
+        var firstSegment = new HashSet<int>();
+        foreach (var i in runIndices)
+        {
+            finish[replica, i] = remaining[i] <= 0 ? 0 : double.PositiveInfinity;
+            if (remaining[i] > 0)
+            {
+                backlog.Enqueue(i);
+                firstSegment.Add(i);
+            }
+        }
+
+        var eligible = new PriorityQueue<int, double>();
+        var running = new PriorityQueue<(int Run, double Length, bool Failed, double Started), double>();
+        var submitted = 0;
+        var free = profile.MaxJobsRunning;
+        var charged = 0.0;
+        var now = 0.0;
+        var allFinished = true;
+
+        void Submit()
+        {
+            while (backlog.Count > 0 && submitted < profile.MaxJobsQueued)
+            {
+                var i = backlog.Dequeue();
+                submitted++;
+                var wait = firstSegment.Remove(i) && runs[i].Active ? 0 : Wait();
+                eligible.Enqueue(i, now + wait);
+            }
+        }
+
+        Submit();
+        while (eligible.Count > 0 || running.Count > 0)
+        {
+            var nextStart = free > 0 && eligible.TryPeek(out _, out var eligibleAt) ? Math.Max(now, eligibleAt) : double.PositiveInfinity;
+            var nextEnd = running.TryPeek(out _, out var endAt) ? endAt : double.PositiveInfinity;
+            if (nextStart <= nextEnd)
+            {
+                var i = eligible.Dequeue();
+                now = nextStart;
+                var run = runs[i];
+                var perHour = profile.ChargedCoreHours(run.Cores, 1);
+                var length = Math.Min(remaining[i], usable);
+                var worst = perHour * profile.WallLimitHours;
+                if (now > allocationEnd || charged + worst > budget)
+                {
+                    submitted--; // the budget guard holds it back for good: it will not finish within this allocation
+                    allFinished = false;
+                    Submit();
+                    continue;
+                }
+
+                var failed = random.NextDouble() < options.SegmentFailureProbability;
+                var elapsed = failed ? length * random.NextDouble() : length;
+                free--;
+                segmentCount[i]++;
+                running.Enqueue((i, length, failed, now), now + elapsed);
+            }
+            else
+            {
+                var (i, length, failed, started) = running.Dequeue();
+                var elapsed = nextEnd - started;
+                now = nextEnd;
+                free++;
+                submitted--;
+                var run = runs[i];
+                var charge = profile.ChargedCoreHours(run.Cores, elapsed);
+                charged += charge;
+                var mid = (started + now) / 2;
+                for (var k = 0; k < myWindows.Length; k++)
+                {
+                    if (windowHours[k].Start <= mid && mid <= windowHours[k].End)
+                    {
+                        windowCharge[myWindows[k], replica] += charge;
+                        break;
+                    }
+                }
+
+                if (!failed)
+                {
+                    remaining[i] -= length;
+                }
+
+                if (remaining[i] <= 1e-9)
+                {
+                    finish[replica, i] = now;
+                    if (now > allocationEnd)
+                    {
+                        allFinished = false;
+                    }
+                }
+                else
+                {
+                    backlog.Enqueue(i);
+                }
+
+                Submit();
+            }
+        }
+
+        if (allocation is not null && myWindows.Length == 1 && allocation.Windows.Count == 0)
+        {
+            windowCharge[myWindows[0], replica] += machine.AlreadyCharged;
+        }
+
+        return allFinished && runIndices.All(i => !double.IsPositiveInfinity(finish[replica, i]));
+    }
+
+    private static double Hours(DateTimeOffset start, DateTime moment) => (new DateTimeOffset(moment, TimeSpan.Zero) - start).TotalHours;
+
+    private static DateQuantiles Quantiles(double[] hours, DateTimeOffset start)
+    {
+        var sorted = hours.Order().ToArray();
+        DateTimeOffset? At(double p)
+        {
+            var h = Quantile(sorted, p);
+            return double.IsPositiveInfinity(h) ? null : start + TimeSpan.FromHours(h);
+        }
+
+        return new DateQuantiles(At(0.1), At(0.5), At(0.9));
+    }
+
+    private static double Quantile(double[] sorted, double p)
+    {
+        if (sorted.Length == 0)
+        {
+            return 0;
+        }
+
+        var index = (int)Math.Min(sorted.Length - 1, Math.Floor(p * sorted.Length));
+        return sorted[index];
+    }
+}

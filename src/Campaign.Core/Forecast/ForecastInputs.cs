@@ -1,0 +1,36 @@
+using Campaign.Core.Domain;
+
+namespace Campaign.Core.Forecast;
+
+/// <summary>One run to forecast (a configuration at one level), as far as it still has to go.</summary>
+/// <param name="Id">Run id.</param>
+/// <param name="Machine">Machine it runs on.</param>
+/// <param name="Cores">Cores per job.</param>
+/// <param name="FeatureRow">The cost model's feature row, or null when its cost is given.</param>
+/// <param name="LogOffset">Added to x'b: minus ln(machine speed).</param>
+/// <param name="GivenCoreHours">Its consumed core-hours when no model applies.</param>
+/// <param name="DoneFraction">Fraction of its simulated length already done (0 for a planned run).</param>
+/// <param name="Active">True when a segment of it is queued or running now (its first segment needs no new submission wait).</param>
+public sealed record ForecastRun(string Id, string Machine, int Cores, double[]? FeatureRow, double LogOffset, double? GivenCoreHours, double DoneFraction, bool Active);
+
+/// <summary>A machine as the forecast sees it: its queue and its allocation.</summary>
+/// <param name="Profile">The machine profile (wall limit, queue limits, queue waits, charge policy).</param>
+/// <param name="Allocation">Its allocation (with windows), or null when it has none.</param>
+/// <param name="AlreadyCharged">Core-hours already charged in the allocation before the forecast starts.</param>
+public sealed record ForecastMachine(MachineProfile Profile, Allocation? Allocation, double AlreadyCharged);
+
+/// <summary>Settings of the forecast.</summary>
+public sealed record ForecastOptions
+{
+    /// <summary>Monte Carlo replicas.</summary>
+    public int Replicas { get; init; } = 2000;
+
+    /// <summary>Seed.</summary>
+    public int Seed { get; init; } = 1;
+
+    /// <summary>Probability that a segment fails and loses its work since the last checkpoint.</summary>
+    public double SegmentFailureProbability { get; init; } = 0.05;
+
+    /// <summary>Hours of each segment kept for writing the checkpoint.</summary>
+    public double CheckpointMarginHours { get; init; } = 0.5;
+}

@@ -1,0 +1,92 @@
+using Campaign.Core.Domain;
+using Campaign.Core.Forecast;
+
+namespace Campaign.Core.Tests.Forecast;
+
+public class CampaignForecasterTests
+{
+    private static readonly DateTimeOffset Start = new(2027, 1, 1, 0, 0, 0, TimeSpan.Zero);
+
+    private static MachineProfile Machine(double waitMedian = 0, double waitP90 = 0, int running = 10, int queued = 10, double wall = 24) =>
+        new("m", "", BatchSystemKind.Slurm, 64, 256, wall, false, 1.0, 1.0, queued, running, waitMedian, waitP90);
+
+    private static ForecastRun Run(string id, double coreHours, int cores = 1, double done = 0) => new(id, "m", cores, null, 0, coreHours, done, false);
+
+    private static ForecastResult Forecast(IReadOnlyList<ForecastRun> runs, MachineProfile machine, Allocation? allocation = null, double failure = 0, int replicas = 200, double already = 0) =>
+        CampaignForecaster.Run(runs, new Dictionary<string, ForecastMachine> { ["m"] = new(machine, allocation, already) }, null, Start,
+            new ForecastOptions { Replicas = replicas, SegmentFailureProbability = failure, Seed = 7 });
+
+    [Fact]
+    public void Without_waits_or_failures_a_run_ends_after_exactly_its_wall_time_in_whole_segments()
+    {
+        // 100 core-hours on 1 core = 100 h; segments of 24 - 0.5 = 23.5 h: four full ones and one of 6 h.
+        var result = Forecast(new[] { Run("a", 100) }, Machine());
+        Assert.Equal(Start.AddHours(100), result.Finish.P10);
+        Assert.Equal(Start.AddHours(100), result.Finish.P90);
+        Assert.Equal(5, result.Runs[0].MeanSegments, 12);
+        Assert.Equal(1, result.ProbabilityFits);
+    }
+
+    [Fact]
+    public void A_run_half_done_needs_half_the_time()
+    {
+        var result = Forecast(new[] { Run("a", 40, done: 0.5) }, Machine());
+        Assert.Equal(Start.AddHours(20), result.Finish.P50);
+    }
+
+    [Fact]
+    public void The_running_job_limit_serialises_runs()
+    {
+        var runs = new[] { Run("a", 10), Run("b", 10), Run("c", 10) };
+        Assert.Equal(Start.AddHours(30), Forecast(runs, Machine(running: 1)).Finish.P50);
+        Assert.Equal(Start.AddHours(10), Forecast(runs, Machine(running: 3)).Finish.P50);
+    }
+
+    [Fact]
+    public void Queue_waits_follow_the_log_normal_with_the_profiles_median_and_90th_percentile()
+    {
+        // One single-segment run of 1 h after a log-normal wait with median 2 h and P90 8 h: the finish
+        // percentiles are 3 h and 9 h (log-normal quantiles: median exp(mu), P90 exp(mu + 1.2816 sigma)).
+        var result = Forecast(new[] { Run("a", 1) }, Machine(waitMedian: 2, waitP90: 8), replicas: 20000);
+        Assert.Equal(3, (result.Finish.P50!.Value - Start).TotalHours, 0.15);
+        Assert.Equal(9, (result.Finish.P90!.Value - Start).TotalHours, 0.5);
+    }
+
+    [Fact]
+    public void Failed_segments_are_repeated_as_often_as_a_geometric_law_says()
+    {
+        // Four full segments needed, each failing with p = 0.2: the expected number of segments is 4/(1 - p) = 5
+        // (mean of a negative binomial count of trials).
+        var result = Forecast(new[] { Run("a", 94) }, Machine(), failure: 0.2, replicas: 20000);
+        Assert.Equal(5, result.Runs[0].MeanSegments, 0.05);
+    }
+
+    [Fact]
+    public void A_plan_larger_than_the_allocation_does_not_fit_and_its_runs_are_late()
+    {
+        var allocation = new Allocation("m", 50, AllocationUnit.CoreHours, new DateOnly(2027, 1, 1), new DateOnly(2027, 12, 31), Array.Empty<AllocationWindow>());
+        var result = Forecast(new[] { Run("a", 100) }, Machine(), allocation);
+        Assert.Equal(0, result.ProbabilityFits);
+        Assert.Equal(1, result.Runs[0].ProbabilityLate);
+        Assert.Null(result.Finish.P50);
+        var window = Assert.Single(result.Windows);
+        Assert.True(window.MeanCharge <= 50);
+    }
+
+    [Fact]
+    public void Charges_land_in_the_window_where_the_segments_run()
+    {
+        var windows = new[]
+        {
+            new AllocationWindow(new DateOnly(2027, 1, 1), new DateOnly(2027, 1, 2), 30),
+            new AllocationWindow(new DateOnly(2027, 1, 3), new DateOnly(2027, 12, 31), 1000),
+        };
+        var allocation = new Allocation("m", 1030, AllocationUnit.CoreHours, new DateOnly(2027, 1, 1), new DateOnly(2027, 12, 31), windows);
+        // 100 h on 1 core: segments 0-23.5, 23.5-47 (both mid-points on Jan 1-2), then the rest after Jan 3.
+        var result = Forecast(new[] { Run("a", 100) }, Machine(), allocation);
+        Assert.Equal(47, result.Windows[0].MeanCharge, 9);
+        Assert.Equal(1, result.Windows[0].ProbabilityOver);
+        Assert.Equal(53, result.Windows[1].MeanCharge, 9);
+        Assert.Equal(1, result.Windows[1].ProbabilityUnused);
+    }
+}
