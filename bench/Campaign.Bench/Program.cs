@@ -22,6 +22,15 @@ if (args.Length > 0 && args[0] == "quick")
         }
     }
 
+    foreach (var (runs, replicas) in new[] { (500, 1_000), (500, 10_000) })
+    {
+        var (campaign, machines) = ForecastBenchmarks.Campaign(runs);
+        var watch = Stopwatch.StartNew();
+        var result = Campaign.Core.Forecast.CampaignForecaster.Run(campaign, machines, null, new DateTimeOffset(2027, 1, 1, 0, 0, 0, TimeSpan.Zero), new Campaign.Core.Forecast.ForecastOptions { Replicas = replicas });
+        watch.Stop();
+        Console.WriteLine(string.Create(inv, $"forecast {runs} runs x {replicas} replicas: {watch.Elapsed.TotalSeconds:F2} s (P(fits) {result.ProbabilityFits:F3})"));
+    }
+
     using var process = Process.GetCurrentProcess();
     Console.WriteLine(string.Create(inv, $"peak working set: {process.PeakWorkingSet64 / 1048576.0:F0} MB"));
     return;

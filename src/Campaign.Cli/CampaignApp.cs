@@ -71,6 +71,7 @@ public sealed class CampaignApp
         root.Add(ModelCommand.Build(this));
         root.Add(EstimateCommand.Build(this));
         root.Add(SelectCommand.Build(this));
+        root.Add(ForecastCommand.Build(this));
         foreach (var command in TrackingCommands.Build(this))
         {
             root.Add(command);

@@ -74,7 +74,24 @@ public class WorkspaceCommandTests
         var select = steps.GetProperty("select");
         Assert.Equal(1, select.GetProperty("plan_id").GetInt64());
         Assert.True(select.GetProperty("upper_bound").GetDouble() >= select.GetProperty("value").GetDouble());
+        var forecast = steps.GetProperty("forecast");
+        Assert.InRange(forecast.GetProperty("probability_fits").GetDouble(), 0, 1);
+        Assert.Equal(1000, forecast.GetProperty("replicas").GetInt32());
+        Assert.True(forecast.GetProperty("runs").GetArrayLength() > 20);
         Assert.True(File.Exists(Path.Combine(folder.Path, "demo-ws", "campaign.db")));
         Assert.Equal(0, CliRun.Of(folder.Path, "--dir", "demo-ws", "check").ExitCode);
+    }
+
+    [Fact]
+    public void Forecast_of_tracked_runs_starts_from_their_state()
+    {
+        using var folder = new TempFolder();
+        CliRun.Of(folder.Path, "demo", "ws", "--skip-run");
+        Assert.Equal(0, CliRun.Of(folder.Path, "--dir", "ws", "track", "--on", "workbench", "--cores", "1", "--only", "sm-q1-a00").ExitCode);
+        var json = CliRun.Of(folder.Path, "--dir", "ws", "forecast", "--replicas", "200", "--json").Json();
+        Assert.Equal("3 active tracked runs", json.GetProperty("source").GetString());
+        Assert.Equal(1.0, json.GetProperty("probability_fits").GetDouble()); // the workstation has no allocation to exceed
+        Assert.Equal(3, json.GetProperty("runs").GetArrayLength());
+        Assert.Equal(2, CliRun.Of(folder.Path, "--dir", "ws", "forecast", "--replicas", "5").ExitCode);
     }
 }

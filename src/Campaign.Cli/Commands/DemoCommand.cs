@@ -87,9 +87,13 @@ internal static class DemoCommand
             SelectCommand.Run(Step("select"), workspace, candidatesPath, "candidates.csv", new SelectOptions(SelectionObjective.Coverage, null, 0.8, Array.Empty<string>(), null, 2, 1500, 10, Save: true));
             o.WriteLine();
 
+            o.WriteLine("== 6. Forecast: when will it finish, and will the allocation last?");
+            RunNested(app, context, Step("forecast"), new[] { "--dir", target, "forecast", "--replicas", "1000", "--runs", "5" });
+            o.WriteLine();
+
             if (!context.Parse.GetValue(skipRun))
             {
-                o.WriteLine("== 6. Run the plan, scaled down, on this machine's local runner (demo payload; seconds instead of weeks)");
+                o.WriteLine("== 7. Run the plan, scaled down, on this machine's local runner (demo payload; seconds instead of weeks)");
                 var trackArgs = new[] { "--dir", target, "track", "--on", "workbench", "--cores", "1" };
                 var watchArgs = new[] { "--dir", target, "watch", "--interval", "1", "--until-done" };
                 RunNested(app, context, Step("track"), trackArgs);

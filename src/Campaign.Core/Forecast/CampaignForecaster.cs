@@ -10,8 +10,9 @@ namespace Campaign.Core.Forecast;
 /// remaining wall time is split into segments by its machine's wall-time limit (less the checkpoint margin);
 /// every segment waits in its machine's queue (a log-normal wait with the profile's median and 90th
 /// percentile), within the limits on jobs queued and running; a segment fails with the learned probability,
-/// losing its work; a segment is started only while the machine's allocation can still cover its worst case
-/// and before the allocation ends (as the tracker's budget guard does). See docs/forecast.md.
+/// losing its work; a segment is started only within the allocation's period (not before it starts, not after
+/// it ends) and while the allocation can still cover its worst case (as the tracker's budget guard does).
+/// See docs/forecast.md.
 /// </summary>
 public static class CampaignForecaster
 {
@@ -24,7 +25,6 @@ public static class CampaignForecaster
         ForecastOptions options)
     {
         var replicas = options.Replicas;
-        var random = new Random(options.Seed);
         var n = runs.Count;
         var finish = new double[replicas, n];
         var segments = new double[n];
@@ -44,14 +44,19 @@ public static class CampaignForecaster
             beta = Vector<double>.Build.DenseOfArray(model.Coefficients);
         }
 
-        var byMachine = Enumerable.Range(0, n).GroupBy(i => runs[i].Machine).OrderBy(g => g.Key, StringComparer.Ordinal).ToList();
-        var z = new double[beta?.Count ?? 0];
-        var remaining = new double[n];
-        for (var r = 0; r < replicas; r++)
+        var byMachine = Enumerable.Range(0, n).GroupBy(i => runs[i].Machine).OrderBy(g => g.Key, StringComparer.Ordinal).Select(g => g.ToArray()).ToList();
+        var segmentCounts = new int[replicas, n];
+
+        // Replicas are independent: each has its own generator, seeded from the seed and its index, so the
+        // result does not depend on how they are spread over threads.
+        Parallel.For(0, replicas, r =>
         {
+            var random = new Random(unchecked(options.Seed * 1_000_003 + r));
+            var remaining = new double[n];
             Vector<double>? b = null;
             if (beta is not null)
             {
+                var z = new double[beta.Count];
                 for (var j = 0; j < z.Length; j++)
                 {
                     z[j] = Normal.Sample(random, 0, 1);
@@ -85,11 +90,22 @@ public static class CampaignForecaster
             var allFit = true;
             foreach (var group in byMachine)
             {
-                var machine = machines[group.Key];
-                allFit &= SimulateMachine(group.ToArray(), runs, machine, remaining, start, options, random, r, finish, segments, windows, windowCharge);
+                var machine = machines[runs[group[0]].Machine];
+                allFit &= SimulateMachine(group, runs, machine, remaining, start, options, random, r, finish, segmentCounts, windows, windowCharge);
             }
 
-            fits += allFit ? 1 : 0;
+            if (allFit)
+            {
+                Interlocked.Increment(ref fits);
+            }
+        });
+
+        for (var i = 0; i < n; i++)
+        {
+            for (var r = 0; r < replicas; r++)
+            {
+                segments[i] += segmentCounts[r, i];
+            }
         }
 
         var runForecasts = new List<RunForecast>();
@@ -148,13 +164,14 @@ public static class CampaignForecaster
 
     /// <summary>One machine in one replica; returns true when every run on it finished within its allocation.</summary>
     private static bool SimulateMachine(int[] runIndices, IReadOnlyList<ForecastRun> runs, ForecastMachine machine, double[] remaining, DateTimeOffset start,
-        ForecastOptions options, Random random, int replica, double[,] finish, double[] segmentCount, IReadOnlyList<Window> windows, double[,] windowCharge)
+        ForecastOptions options, Random random, int replica, double[,] finish, int[,] segmentCount, IReadOnlyList<Window> windows, double[,] windowCharge)
     {
         var profile = machine.Profile;
         var usable = Math.Max(profile.WallLimitHours - options.CheckpointMarginHours, profile.WallLimitHours / 2);
         var allocation = machine.Allocation;
         var budget = allocation is null ? double.PositiveInfinity : allocation.CoreHours(profile) - machine.AlreadyCharged;
         var allocationEnd = allocation is null ? double.PositiveInfinity : Hours(start, allocation.End.ToDateTime(TimeOnly.MaxValue, DateTimeKind.Utc));
+        var allocationStart = allocation is null ? 0 : Math.Max(0, Hours(start, allocation.Start.ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc)));
         var myWindows = Enumerable.Range(0, windows.Count).Where(k => windows[k].Machine == profile.Name).ToArray();
         var windowHours = myWindows.Select(k => (Start: Hours(start, windows[k].Start.ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc)), End: Hours(start, windows[k].End.ToDateTime(TimeOnly.MaxValue, DateTimeKind.Utc)))).ToArray();
         var sigma = profile.QueueWaitMedianHours > 0 && profile.QueueWaitP90Hours > profile.QueueWaitMedianHours ? Math.Log(profile.QueueWaitP90Hours / profile.QueueWaitMedianHours) / 1.2815515655446004 : 0;
@@ -194,7 +211,7 @@ public static class CampaignForecaster
         Submit();
         while (eligible.Count > 0 || running.Count > 0)
         {
-            var nextStart = free > 0 && eligible.TryPeek(out _, out var eligibleAt) ? Math.Max(now, eligibleAt) : double.PositiveInfinity;
+            var nextStart = free > 0 && eligible.TryPeek(out _, out var eligibleAt) ? Math.Max(Math.Max(now, eligibleAt), allocationStart) : double.PositiveInfinity;
             var nextEnd = running.TryPeek(out _, out var endAt) ? endAt : double.PositiveInfinity;
             if (nextStart <= nextEnd)
             {
@@ -215,7 +232,7 @@ public static class CampaignForecaster
                 var failed = random.NextDouble() < options.SegmentFailureProbability;
                 var elapsed = failed ? length * random.NextDouble() : length;
                 free--;
-                segmentCount[i]++;
+                segmentCount[replica, i]++;
                 running.Enqueue((i, length, failed, now), now + elapsed);
             }
             else

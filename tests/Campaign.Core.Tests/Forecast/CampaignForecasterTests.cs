@@ -89,4 +89,12 @@ public class CampaignForecasterTests
         Assert.Equal(53, result.Windows[1].MeanCharge, 9);
         Assert.Equal(1, result.Windows[1].ProbabilityUnused);
     }
+
+    [Fact]
+    public void Nothing_runs_before_the_allocation_starts()
+    {
+        var allocation = new Allocation("m", 1000, AllocationUnit.CoreHours, new DateOnly(2027, 2, 1), new DateOnly(2027, 12, 31), Array.Empty<AllocationWindow>());
+        var result = Forecast(new[] { Run("a", 10) }, Machine(), allocation);
+        Assert.Equal(new DateTimeOffset(2027, 2, 1, 10, 0, 0, TimeSpan.Zero), result.Finish.P50);
+    }
 }
