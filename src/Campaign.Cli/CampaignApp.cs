@@ -72,6 +72,7 @@ public sealed class CampaignApp
         root.Add(EstimateCommand.Build(this));
         root.Add(SelectCommand.Build(this));
         root.Add(ForecastCommand.Build(this));
+        root.Add(ReportCommand.Build(this));
         foreach (var command in TrackingCommands.Build(this))
         {
             root.Add(command);

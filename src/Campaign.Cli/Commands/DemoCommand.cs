@@ -102,6 +102,10 @@ internal static class DemoCommand
                 o.WriteLine();
             }
 
+            o.WriteLine("== 8. The report: plots and tables for the group and the review panel");
+            RunNested(app, context, Step("report"), new[] { "--dir", target, "report", "--out", Path.Combine(target, "report"), "--candidates", candidatesPath });
+            o.WriteLine();
+
             if (context.Json)
             {
                 Json.Write(context.Out, new
@@ -112,6 +116,7 @@ internal static class DemoCommand
                 return ExitCodes.Ok;
             }
 
+            o.WriteLine($"Open {Path.Combine(target, "report", "report.html")} in a browser.");
             o.WriteLine("Explore it:");
             o.WriteLine($"  ./campaign --dir {target} check");
             o.WriteLine($"  ./campaign --dir {target} model show");
