@@ -34,7 +34,12 @@ internal static class ForecastCommand
             var failure = FailureProbability(logs);
             var machines = Machines(workspace, now);
             var model = CostModelStore.Latest(workspace.Connection)?.Model;
-            var result = CampaignForecaster.Run(runs, machines, model, now, new ForecastOptions { Replicas = count, Seed = context.Parse.GetValue(seed), SegmentFailureProbability = failure.Probability });
+            ForecastResult result;
+            using (var bar = TerminalProgress.For(context, "forecast"))
+            {
+                result = CampaignForecaster.Run(runs, machines, model, now, new ForecastOptions { Replicas = count, Seed = context.Parse.GetValue(seed), SegmentFailureProbability = failure.Probability }, bar);
+            }
+
             Write(context, result, source, failure, Math.Max(0, context.Parse.GetValue(runsShown)));
             return ExitCodes.Ok;
         });

@@ -9,10 +9,10 @@ namespace Campaign.Cli.Commands;
 internal static class ModelCommand
 {
     /// <summary>Fits the cost model to the stored runs and stores it; returns its id and the model.</summary>
-    public static (long Id, FittedCostModel Model) FitAndStore(Workspace workspace, CostFitOptions options, TimeProvider time)
+    public static (long Id, FittedCostModel Model) FitAndStore(Workspace workspace, CostFitOptions options, TimeProvider time, IProgress<double>? progress = null)
     {
         var training = TrainingSet.From(RunLogStore.All(workspace.Connection), workspace.Machines, workspace.Config.Length);
-        var model = CostModelFitter.Fit(training.Observations, training.CoreHours, options, training.Skipped);
+        var model = CostModelFitter.Fit(training.Observations, training.CoreHours, options, training.Skipped, progress);
         return (CostModelStore.Save(workspace.Connection, model, time), model);
     }
 
@@ -33,7 +33,13 @@ internal static class ModelCommand
 
             using var workspace = Workspace.Open(context.Workspace, context.Time);
             var options = new CostFitOptions { Robust = context.Parse.GetValue(robust), Folds = folding, Seed = context.Parse.GetValue(seed) };
-            var (id, model) = FitAndStore(workspace, options, context.Time);
+            long id;
+            FittedCostModel model;
+            using (var bar = TerminalProgress.For(context, "fit"))
+            {
+                (id, model) = FitAndStore(workspace, options, context.Time, bar);
+            }
+
             Write(context, id, context.Time.GetUtcNow().ToString("O", System.Globalization.CultureInfo.InvariantCulture), model);
             return ExitCodes.Ok;
         });

@@ -78,7 +78,12 @@ internal static class SelectCommand
             reserved);
         var estimateOptions = new EstimateOptions { EccentricityTrials = options.EccentricityTrials, EccentricityTrialLength = options.EccentricityTrialLength };
         var built = SelectionBuilder.Build(candidates, workspace.Machines, CostModelStore.Latest(workspace.Connection)?.Model, StorageModel.Fit(training.Lengths), config.Length, estimateOptions, config.Selection, existing, request);
-        var result = Selector.Solve(built.Problem);
+        SelectionResult result;
+        using (var bar = TerminalProgress.For(context, "select"))
+        {
+            result = Selector.Solve(built.Problem, bar);
+        }
+
         var report = SelectionReport.Of(built.Problem, result, options.LeftOut);
         long? planId = null;
         var carried = 0;

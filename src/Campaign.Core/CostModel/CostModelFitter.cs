@@ -17,7 +17,7 @@ public static class CostModelFitter
     /// <summary>
     /// Fits the model. <paramref name="coreHours"/> are the consumed core-hours of each observation's run.
     /// </summary>
-    public static FittedCostModel Fit(IReadOnlyList<CostObservation> data, IReadOnlyList<double> coreHours, CostFitOptions options, int runsSkipped = 0)
+    public static FittedCostModel Fit(IReadOnlyList<CostObservation> data, IReadOnlyList<double> coreHours, CostFitOptions options, int runsSkipped = 0, IProgress<double>? progress = null)
     {
         if (data.Count != coreHours.Count)
         {
@@ -33,7 +33,13 @@ public static class CostModelFitter
         var candidates = FeatureSet.Candidates(data, options.MinRunsPerMachine);
         var folds = Math.Min(options.Folds, data.Count);
         var assignment = FoldAssignment(data.Count, folds, options.Seed);
-        var scores = candidates.Select(set => CrossValidate(set, data, y, assignment, folds, options)).ToList();
+        var scores = new List<FeatureSetScore>();
+        foreach (var set in candidates)
+        {
+            scores.Add(CrossValidate(set, data, y, assignment, folds, options));
+            progress?.Report((double)scores.Count / (candidates.Count + 1));
+        }
+
         var best = scores.MinBy(s => s.CvMse)!;
         var chosenScore = scores.Where(s => s.CvMse <= best.CvMse + best.CvMseStandardError).OrderBy(s => s.Parameters).First();
         var chosen = candidates.Single(c => c.Name == chosenScore.Name);
@@ -56,6 +62,7 @@ public static class CostModelFitter
         }
 
         var covariance = fit.UnscaledCovariance;
+        progress?.Report(1);
         return new FittedCostModel
         {
             FeatureSet = chosen.Name,

@@ -16,14 +16,16 @@ namespace Campaign.Core.Forecast;
 /// </summary>
 public static class CampaignForecaster
 {
-    /// <summary>Runs the forecast from <paramref name="start"/>.</summary>
+    /// <summary>Runs the forecast from <paramref name="start"/>; <paramref name="progress"/> hears the share of replicas done.</summary>
     public static ForecastResult Run(
         IReadOnlyList<ForecastRun> runs,
         IReadOnlyDictionary<string, ForecastMachine> machines,
         FittedCostModel? model,
         DateTimeOffset start,
-        ForecastOptions options)
+        ForecastOptions options,
+        IProgress<double>? progress = null)
     {
+        var done = 0;
         var replicas = options.Replicas;
         var n = runs.Count;
         var finish = new double[replicas, n];
@@ -97,6 +99,12 @@ public static class CampaignForecaster
             if (allFit)
             {
                 Interlocked.Increment(ref fits);
+            }
+
+            var finished = Interlocked.Increment(ref done);
+            if (progress is not null && finished % Math.Max(1, replicas / 100) == 0)
+            {
+                progress.Report((double)finished / replicas);
             }
         });
 

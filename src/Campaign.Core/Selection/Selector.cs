@@ -20,7 +20,7 @@ public static class Selector
 
 
     /// <summary>Solves the problem.</summary>
-    public static SelectionResult Solve(SelectionProblem problem)
+    public static SelectionResult Solve(SelectionProblem problem, IProgress<double>? progress = null)
     {
         var n = problem.Candidates.Count;
         var capacity = problem.Pools.Select(p => p.Capacity).ToArray();
@@ -30,7 +30,7 @@ public static class Selector
             return SolveValue(problem, musts, capacity);
         }
 
-        return SolveCoverage(problem, musts, capacity);
+        return SolveCoverage(problem, musts, capacity, progress);
     }
 
     private static List<Assignment> PlaceMusts(SelectionProblem problem, double[] capacity)
@@ -120,7 +120,7 @@ public static class Selector
         return best;
     }
 
-    private static SelectionResult SolveCoverage(SelectionProblem problem, List<Assignment> musts, double[] capacity)
+    private static SelectionResult SolveCoverage(SelectionProblem problem, List<Assignment> musts, double[] capacity, IProgress<double>? progress)
     {
         var candidates = problem.Candidates;
         var start = new CoverageFunction(candidates.Select(c => c.Coordinates).ToList(), candidates.Select(c => c.Value).ToList(), problem.Existing);
@@ -131,6 +131,7 @@ public static class Selector
 
         var slots = problem.MaxRuns is { } cap ? cap - musts.Count : int.MaxValue;
         var reaches = ReachTable(start, candidates);
+        progress?.Report(0.3);
         var chosenMask = new bool[candidates.Count];
         foreach (var m in musts)
         {
@@ -143,6 +144,8 @@ public static class Selector
         var greedy = Greedy(problem, greedyF, (bool[])chosenMask.Clone(), (double[])capacity.Clone(), slots, startGains, reaches);
         var best = (Set: greedy, Value: greedyF.Value);
         var method = "lazy greedy by gain per cost";
+
+        progress?.Report(0.6);
 
         // 2. The best single affordable candidate.
         if (slots > 0)
@@ -203,6 +206,8 @@ public static class Selector
             }
         }
 
+        progress?.Report(0.75);
+
         // 4. Swap local search within the budget.
         var chosen = musts.Concat(best.Set).ToList();
         var swapped = SwapSearch(problem, start, musts.Count, chosen, reaches);
@@ -218,6 +223,7 @@ public static class Selector
         {
             bound = Math.Min(bound, UpperBound(problem, musts.Concat(greedy).ToList(), capacity, reaches));
         }
+        progress?.Report(1);
         var guarantee = problem.Pools.Count > 1 ? 0 : seedSize == 3 ? 1 - 1 / Math.E : (1 - 1 / Math.E) / 2;
         return new SelectionResult(chosen, final, Math.Max(bound, final), method, guarantee);
     }

@@ -97,4 +97,30 @@ public class CampaignForecasterTests
         var result = Forecast(new[] { Run("a", 10) }, Machine(), allocation);
         Assert.Equal(new DateTimeOffset(2027, 2, 1, 10, 0, 0, TimeSpan.Zero), result.Finish.P50);
     }
+
+    private sealed class Recorder : IProgress<double>
+    {
+        public List<double> Values { get; } = new();
+
+        public void Report(double value)
+        {
+            lock (Values)
+            {
+                Values.Add(value);
+            }
+        }
+    }
+
+    [Fact]
+    public void Progress_is_reported_up_to_completion_and_does_not_change_the_result()
+    {
+        var runs = new[] { Run("a", 50), Run("b", 70) };
+        var recorder = new Recorder();
+        var machines = new Dictionary<string, ForecastMachine> { ["m"] = new(Machine(2, 8), null, 0) };
+        var options = new ForecastOptions { Replicas = 500, Seed = 3 };
+        var with = CampaignForecaster.Run(runs, machines, null, Start, options, recorder);
+        var without = CampaignForecaster.Run(runs, machines, null, Start, options);
+        Assert.Equal(1.0, recorder.Values.Max());
+        Assert.Equal(without.Finish, with.Finish);
+    }
 }
