@@ -111,6 +111,9 @@ public sealed class Segment
 
     public string SubmittedAt { get; set; } = "";
 
+    /// <summary>When the segment was first seen running (its queue wait ends there).</summary>
+    public string? StartedAt { get; set; }
+
     public string? EndedAt { get; set; }
 }
 
@@ -122,7 +125,7 @@ public static class TrackingStore
 {
     private const string RunColumns = "run_id AS RunId, config_id AS ConfigId, level AS Level, machine AS Machine, cores AS Cores, folder AS Folder, target_length AS TargetLength, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, position AS Position, state AS State, reason AS Reason, failures_with_progress AS FailuresWithProgress, failures_without_progress AS FailuresWithoutProgress, stall_restarts AS StallRestarts, progress_t AS ProgressT, progress_at AS ProgressAt, norm AS Norm, checkpoint AS Checkpoint, created_at AS CreatedAt, updated_at AS UpdatedAt, finished_at AS FinishedAt";
 
-    private const string SegmentColumns = "id AS Id, run_id AS RunId, number AS Number, job_name AS JobName, job_id AS JobId, phase AS Phase, job_state AS JobState, native_state AS NativeState, exit_code AS ExitCode, signal AS Signal, elapsed_seconds AS ElapsedSeconds, charged_core_hours AS ChargedCoreHours, worst_case_core_hours AS WorstCaseCoreHours, wall_seconds AS WallSeconds, start_t AS StartT, restart_from AS RestartFrom, cancel_reason AS CancelReason, submitted_at AS SubmittedAt, ended_at AS EndedAt";
+    private const string SegmentColumns = "id AS Id, run_id AS RunId, number AS Number, job_name AS JobName, job_id AS JobId, phase AS Phase, job_state AS JobState, native_state AS NativeState, exit_code AS ExitCode, signal AS Signal, elapsed_seconds AS ElapsedSeconds, charged_core_hours AS ChargedCoreHours, worst_case_core_hours AS WorstCaseCoreHours, wall_seconds AS WallSeconds, start_t AS StartT, restart_from AS RestartFrom, cancel_reason AS CancelReason, submitted_at AS SubmittedAt, started_at AS StartedAt, ended_at AS EndedAt";
 
     public static IReadOnlyList<TrackedRun> Runs(SqliteConnection connection, SqliteTransaction? transaction = null) =>
         connection.Query<TrackedRun>($"SELECT {RunColumns} FROM tracked_runs ORDER BY position, run_id", transaction: transaction).ToList();
@@ -192,7 +195,7 @@ public static class TrackingStore
         connection.Execute(
             """
             UPDATE segments SET job_id = @JobId, phase = @Phase, job_state = @JobState, native_state = @NativeState, exit_code = @ExitCode, signal = @Signal,
-                elapsed_seconds = @ElapsedSeconds, charged_core_hours = @ChargedCoreHours, cancel_reason = @CancelReason, ended_at = @EndedAt
+                elapsed_seconds = @ElapsedSeconds, charged_core_hours = @ChargedCoreHours, cancel_reason = @CancelReason, started_at = @StartedAt, ended_at = @EndedAt
             WHERE id = @Id
             """,
             segment,

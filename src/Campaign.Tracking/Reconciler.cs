@@ -138,6 +138,8 @@ public sealed class Reconciler
                 if (running && !wasRunning)
                 {
                     run.ProgressAt = Now; // the stall clock starts when the segment starts
+                    segment.StartedAt ??= Now;
+                    TrackingStore.Save(Db, tx, segment);
                 }
 
                 Change(tx, run, from, running ? $"segment {segment.Number} (job {segment.JobId}) running" : $"segment {segment.Number} (job {segment.JobId}) {status.NativeState.ToLowerInvariant()}");

@@ -110,7 +110,7 @@ internal static class ForecastCommand
         return (p, $"{failures} failed or partial runs over {segments} logged segments");
     }
 
-    private static IReadOnlyDictionary<string, ForecastMachine> Machines(Workspace workspace, DateTimeOffset now)
+    internal static IReadOnlyDictionary<string, ForecastMachine> Machines(Workspace workspace, DateTimeOffset now)
     {
         var today = DateOnly.FromDateTime(now.UtcDateTime);
         var segments = TrackingStore.Segments(workspace.Connection);
@@ -123,7 +123,12 @@ internal static class ForecastCommand
                 .Where(s => s.Phase == "ended" && runs.TryGetValue(s.RunId, out var r) && r.Machine == profile.Name && s.EndedAt is not null)
                 .Where(s => DateOnly.FromDateTime(DateTimeOffset.Parse(s.EndedAt!, CultureInfo.InvariantCulture).UtcDateTime) is var d && d >= allocation.Start && d <= allocation.End)
                 .Sum(s => s.ChargedCoreHours ?? 0);
-            result[profile.Name] = new ForecastMachine(profile, allocation, already);
+            var waits = segments
+                .Where(s => s.StartedAt is not null && runs.TryGetValue(s.RunId, out var r) && r.Machine == profile.Name)
+                .Select(s => (DateTimeOffset.Parse(s.StartedAt!, CultureInfo.InvariantCulture) - DateTimeOffset.Parse(s.SubmittedAt, CultureInfo.InvariantCulture)).TotalHours)
+                .Where(h => h >= 0)
+                .ToList();
+            result[profile.Name] = new ForecastMachine(profile, allocation, already, waits);
         }
 
         return result;

@@ -34,7 +34,7 @@ internal static class ReportCommand
             if (plan is not null || tracked.Count > 0)
             {
                 var (runs, _) = ForecastCommand.Runs(workspace);
-                var machines = workspace.Machines.Values.ToDictionary(m => m.Name, m => new ForecastMachine(m, config.Allocations.FirstOrDefault(a => a.Machine == m.Name && a.End >= DateOnly.FromDateTime(now.UtcDateTime)), 0));
+                var machines = ForecastCommand.Machines(workspace, now);
                 forecast = CampaignForecaster.Run(runs, machines, model, now, new ForecastOptions { Replicas = Math.Clamp(context.Parse.GetValue(replicas), 10, 100_000), SegmentFailureProbability = ForecastCommand.FailureProbability(logs).Probability });
             }
 

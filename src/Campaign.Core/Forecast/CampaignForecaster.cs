@@ -182,8 +182,9 @@ public static class CampaignForecaster
         var allocationStart = allocation is null ? 0 : Math.Max(0, Hours(start, allocation.Start.ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc)));
         var myWindows = Enumerable.Range(0, windows.Count).Where(k => windows[k].Machine == profile.Name).ToArray();
         var windowHours = myWindows.Select(k => (Start: Hours(start, windows[k].Start.ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc)), End: Hours(start, windows[k].End.ToDateTime(TimeOnly.MaxValue, DateTimeKind.Utc)))).ToArray();
-        var sigma = profile.QueueWaitMedianHours > 0 && profile.QueueWaitP90Hours > profile.QueueWaitMedianHours ? Math.Log(profile.QueueWaitP90Hours / profile.QueueWaitMedianHours) / 1.2815515655446004 : 0;
-        double Wait() => profile.QueueWaitMedianHours <= 0 ? 0 : profile.QueueWaitMedianHours * Math.Exp(sigma * Normal.Sample(random, 0, 1));
+        var (waitMedian, waitP90, _) = machine.QueueWait();
+        var sigma = waitMedian > 0 && waitP90 > waitMedian ? Math.Log(waitP90 / waitMedian) / 1.2815515655446004 : 0;
+        double Wait() => waitMedian <= 0 ? 0 : waitMedian * Math.Exp(sigma * Normal.Sample(random, 0, 1));
 
         var backlog = new Queue<int>();
         var firstSegment = new HashSet<int>();

@@ -17,7 +17,26 @@ public sealed record ForecastRun(string Id, string Machine, int Cores, double[]?
 /// <param name="Profile">The machine profile (wall limit, queue limits, queue waits, charge policy).</param>
 /// <param name="Allocation">Its allocation (with windows), or null when it has none.</param>
 /// <param name="AlreadyCharged">Core-hours already charged in the allocation before the forecast starts.</param>
-public sealed record ForecastMachine(MachineProfile Profile, Allocation? Allocation, double AlreadyCharged);
+/// <param name="MeasuredWaitsHours">Queue waits the campaign has measured on this machine; with at least
+/// <see cref="ForecastMachine.MinimumMeasuredWaits"/> of them their median and 90th percentile replace the profile's.</param>
+public sealed record ForecastMachine(MachineProfile Profile, Allocation? Allocation, double AlreadyCharged, IReadOnlyList<double>? MeasuredWaitsHours = null)
+{
+    /// <summary>Measured waits needed before they replace the profile's stated distribution.</summary>
+    public const int MinimumMeasuredWaits = 5;
+
+    /// <summary>The median and 90th percentile of the queue wait in use, and where they come from.</summary>
+    public (double Median, double P90, string Source) QueueWait()
+    {
+        if (MeasuredWaitsHours is { Count: >= MinimumMeasuredWaits } waits)
+        {
+            var sorted = waits.Order().ToArray();
+            double At(double p) => sorted[(int)Math.Min(sorted.Length - 1, Math.Floor(p * sorted.Length))];
+            return (At(0.5), Math.Max(At(0.9), At(0.5)), $"{sorted.Length} measured waits");
+        }
+
+        return (Profile.QueueWaitMedianHours, Profile.QueueWaitP90Hours, "the profile");
+    }
+}
 
 /// <summary>Settings of the forecast.</summary>
 public sealed record ForecastOptions

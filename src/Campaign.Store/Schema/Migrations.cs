@@ -159,6 +159,9 @@ public static class Migrations
             ) STRICT;
             CREATE INDEX run_events_by_run ON run_events (run_id, id);
             """),
+        new Migration(5, "when segments start running (measured queue waits)", """
+            ALTER TABLE segments ADD COLUMN started_at TEXT;
+            """),
     };
 
     /// <summary>Schema version this build writes.</summary>

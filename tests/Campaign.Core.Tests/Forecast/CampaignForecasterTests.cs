@@ -123,4 +123,16 @@ public class CampaignForecasterTests
         Assert.Equal(1.0, recorder.Values.Max());
         Assert.Equal(without.Finish, with.Finish);
     }
+
+    [Fact]
+    public void Measured_waits_replace_the_profile_once_there_are_enough()
+    {
+        var profile = Machine(waitMedian: 2, waitP90: 8);
+        Assert.Equal((2.0, 8.0, "the profile"), new ForecastMachine(profile, null, 0, new double[] { 1, 1, 1, 1 }).QueueWait());
+        var measured = new ForecastMachine(profile, null, 0, new double[] { 0.5, 1, 1.5, 2, 2.5, 3, 3.5, 4, 4.5, 10 }).QueueWait();
+        Assert.Equal((3.0, 10.0, "10 measured waits"), measured);
+        // With measured waits of exactly 0 the runs start at once: the finish is the wall time alone.
+        var instant = CampaignForecaster.Run(new[] { Run("a", 10) }, new Dictionary<string, ForecastMachine> { ["m"] = new(profile, null, 0, new double[] { 0, 0, 0, 0, 0 }) }, null, Start, new ForecastOptions { Replicas = 50 });
+        Assert.Equal(Start.AddHours(10), instant.Finish.P90);
+    }
 }
