@@ -97,6 +97,12 @@ internal static class DemoCommand
                 var trackArgs = new[] { "--dir", target, "track", "--on", "workbench", "--cores", "1" };
                 var watchArgs = new[] { "--dir", target, "watch", "--interval", "1", "--until-done" };
                 RunNested(app, context, Step("track"), trackArgs);
+
+                // One run is made to go bad on purpose (its constraint norm grows exponentially), to show the tracker
+                // holding it with a reason instead of burning more time on it.
+                var unlucky = Directory.EnumerateDirectories(Path.Combine(target, config.Tracking.RunsFolder)).Order(StringComparer.Ordinal).Last();
+                File.WriteAllText(Path.Combine(unlucky, "payload.json"), "{\"instability_rate\": 0.02}");
+                o.WriteLine($"(The demo payload of {Path.GetFileName(unlucky)} is set to go unstable: watch it being held.)");
                 RunNested(app, context, Step("watch"), watchArgs);
                 RunNested(app, context, Step("status"), new[] { "--dir", target, "status" });
                 o.WriteLine();
