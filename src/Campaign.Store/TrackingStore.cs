@@ -65,6 +65,9 @@ public sealed class TrackedRun
 
     public string? FinishedAt { get; set; }
 
+    /// <summary>A rehearsal (a scaled-down run, e.g. on a workstation): its cost is not written into the run logs.</summary>
+    public bool Rehearsal { get; set; }
+
     public RunState RunState => RunStates.Parse(State);
 
     public BinaryConfiguration Configuration =>
@@ -123,7 +126,7 @@ public sealed record RunEvent(long Id, string At, string RunId, string FromState
 /// <summary>Reads and writes tracked runs, segments and run events. Callers own the transactions.</summary>
 public static class TrackingStore
 {
-    private const string RunColumns = "run_id AS RunId, config_id AS ConfigId, level AS Level, machine AS Machine, cores AS Cores, folder AS Folder, target_length AS TargetLength, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, position AS Position, state AS State, reason AS Reason, failures_with_progress AS FailuresWithProgress, failures_without_progress AS FailuresWithoutProgress, stall_restarts AS StallRestarts, progress_t AS ProgressT, progress_at AS ProgressAt, norm AS Norm, checkpoint AS Checkpoint, created_at AS CreatedAt, updated_at AS UpdatedAt, finished_at AS FinishedAt";
+    private const string RunColumns = "run_id AS RunId, config_id AS ConfigId, level AS Level, machine AS Machine, cores AS Cores, folder AS Folder, target_length AS TargetLength, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, position AS Position, state AS State, reason AS Reason, failures_with_progress AS FailuresWithProgress, failures_without_progress AS FailuresWithoutProgress, stall_restarts AS StallRestarts, progress_t AS ProgressT, progress_at AS ProgressAt, norm AS Norm, checkpoint AS Checkpoint, created_at AS CreatedAt, updated_at AS UpdatedAt, finished_at AS FinishedAt, rehearsal AS Rehearsal";
 
     private const string SegmentColumns = "id AS Id, run_id AS RunId, number AS Number, job_name AS JobName, job_id AS JobId, phase AS Phase, job_state AS JobState, native_state AS NativeState, exit_code AS ExitCode, signal AS Signal, elapsed_seconds AS ElapsedSeconds, charged_core_hours AS ChargedCoreHours, worst_case_core_hours AS WorstCaseCoreHours, wall_seconds AS WallSeconds, start_t AS StartT, restart_from AS RestartFrom, cancel_reason AS CancelReason, submitted_at AS SubmittedAt, started_at AS StartedAt, ended_at AS EndedAt";
 
@@ -152,9 +155,9 @@ public static class TrackingStore
         connection.Execute(
             """
             INSERT INTO tracked_runs (run_id, config_id, level, machine, cores, folder, target_length, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0,
-                position, state, reason, created_at, updated_at)
+                position, state, reason, created_at, updated_at, rehearsal)
             VALUES (@RunId, @ConfigId, @Level, @Machine, @Cores, @Folder, @TargetLength, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0,
-                @Position, @State, @Reason, @CreatedAt, @UpdatedAt)
+                @Position, @State, @Reason, @CreatedAt, @UpdatedAt, @Rehearsal)
             """,
             run,
             transaction);

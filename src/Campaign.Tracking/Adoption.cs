@@ -16,9 +16,10 @@ public static class Adoption
     /// Adds every run of <paramref name="plan"/> not tracked yet, in one transaction, creating its folder with a
     /// run.json that describes it (physics, level, target length) for the simulation script. <paramref name="machine"/>
     /// and <paramref name="cores"/> override the plan's assignment (for example to run a scaled-down plan on a
-    /// workstation). Returns the runs added.
+    /// workstation); <paramref name="rehearsal"/> marks the runs as a rehearsal whose costs stay out of the run
+/// logs. Returns the runs added.
     /// </summary>
-    public static IReadOnlyList<TrackedRun> AddFromPlan(Workspace workspace, Plan plan, string? machine, int? cores, IReadOnlySet<string>? only, TimeProvider time)
+    public static IReadOnlyList<TrackedRun> AddFromPlan(Workspace workspace, Plan plan, string? machine, int? cores, IReadOnlySet<string>? only, TimeProvider time, bool rehearsal = false)
     {
         if (machine is not null && !workspace.Machines.ContainsKey(machine))
         {
@@ -64,6 +65,7 @@ public static class Adoption
                     Omega0 = c.Omega0,
                     Position = position++,
                     State = "planned",
+                    Rehearsal = rehearsal,
                 };
                 var full = Path.Combine(workspace.Root, folder);
                 Directory.CreateDirectory(full);

@@ -221,7 +221,7 @@ public sealed class Reconciler
             }
 
             Change(tx, run, from, $"segment {segment.Number} (job {segment.JobId}) ended {status.NativeState}{exit}: {why}");
-            if (step == NextStep.Finish)
+            if (step == NextStep.Finish && !run.Rehearsal)
             {
                 LogFinished(tx, run, folder);
             }

@@ -38,7 +38,7 @@ public sealed class TrackingTests : IDisposable
     private string Ws(string relative = "") => Path.Combine(_folder.Path, "ws", relative);
 
     /// <summary>The demo workspace with its plan saved, tracking the given configurations on the workstation.</summary>
-    private void Prepare(string only, string extraConfig = "")
+    private void Prepare(string only, string extraConfig = "", bool rehearsal = false)
     {
         Assert.Equal(0, CliRun.Of(_folder.Path, "demo", "ws", "--skip-run").ExitCode);
         if (extraConfig.Length > 0)
@@ -46,7 +46,8 @@ public sealed class TrackingTests : IDisposable
             File.AppendAllText(Ws("campaign.toml"), extraConfig);
         }
 
-        var track = CliRun.Live(_folder.Path, "--dir", "ws", "track", "--on", "workbench", "--cores", "1", "--only", only);
+        var arguments = new[] { "--dir", "ws", "track", "--on", "workbench", "--cores", "1", "--only", only };
+        var track = CliRun.Live(_folder.Path, rehearsal ? arguments.Append("--rehearsal").ToArray() : arguments);
         Assert.True(track.ExitCode == 0, track.Err);
     }
 
@@ -160,7 +161,7 @@ public sealed class TrackingTests : IDisposable
     [Fact]
     public void A_stalled_run_and_a_run_with_a_growing_constraint_norm_are_held_with_reasons()
     {
-        Prepare("sm-q1-a00", "\n# (test)\n");
+        Prepare("sm-q1-a00", "\n# (test)\n", rehearsal: true);
         // Runs .L1 stalls at t = 800 M; .L2's constraint norm grows as exp(0.02 t); .L3 is healthy.
         File.WriteAllText(Ws("runs/sm-q1-a00.L1/payload.json"), "{\"stall_at\": 800}");
         File.WriteAllText(Ws("runs/sm-q1-a00.L2/payload.json"), "{\"instability_rate\": 0.02}");
@@ -178,6 +179,8 @@ public sealed class TrackingTests : IDisposable
         Assert.Equal("held", runs["sm-q1-a00.L2"].GetProperty("state").GetString());
         Assert.StartsWith("constraint norm growing steadily: rate 0.02 per M", runs["sm-q1-a00.L2"].GetProperty("reason").GetString());
         Assert.Equal("finished", runs["sm-q1-a00.L3"].GetProperty("state").GetString());
+        var logged = CliRun.Of(_folder.Path, "--dir", "ws", "logs", "list", "--json").Json().GetProperty("runs").EnumerateArray().Select(r => r.GetProperty("run_id").GetString());
+        Assert.DoesNotContain("sm-q1-a00.L3", logged); // a rehearsal does not teach the cost model
 
         // A human releases the stalled run after fixing it.
         File.Delete(Ws("runs/sm-q1-a00.L1/payload.json"));

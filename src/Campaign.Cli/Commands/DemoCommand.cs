@@ -94,7 +94,7 @@ internal static class DemoCommand
             if (!context.Parse.GetValue(skipRun))
             {
                 o.WriteLine("== 7. Run the plan, scaled down, on this machine's local runner (demo payload; seconds instead of weeks)");
-                var trackArgs = new[] { "--dir", target, "track", "--on", "workbench", "--cores", "1" };
+                var trackArgs = new[] { "--dir", target, "track", "--on", "workbench", "--cores", "1", "--rehearsal" };
                 var watchArgs = new[] { "--dir", target, "watch", "--interval", "1", "--until-done" };
                 RunNested(app, context, Step("track"), trackArgs);
 

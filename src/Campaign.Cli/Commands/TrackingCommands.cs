@@ -40,7 +40,8 @@ internal static class TrackingCommands
         var on = new Option<string?>("--on") { Description = "Run every configuration on this machine instead of the plan's assignment (e.g. a workstation)", HelpName = "MACHINE" };
         var cores = new Option<int?>("--cores") { Description = "Cores per job instead of the plan's", HelpName = "N" };
         var only = new Option<string[]>("--only") { Description = "Only these configuration ids (repeat, or separate with commas)", AllowMultipleArgumentsPerToken = true, HelpName = "ID" };
-        var command = new Command("track", "Start tracking the runs of the current plan (one run per configuration and level)") { on, cores, only };
+        var rehearsal = new Option<bool>("--rehearsal") { Description = "A scaled-down rehearsal: finished runs are not written into the run logs" };
+        var command = new Command("track", "Start tracking the runs of the current plan (one run per configuration and level)") { on, cores, only, rehearsal };
         app.Bind(command, context =>
         {
             using var workspace = Workspace.Open(context.Workspace, context.Time);
@@ -53,7 +54,7 @@ internal static class TrackingCommands
                 throw new InvalidInputException(new[] { $"--cores = {coreCount}: expected at least 1" });
             }
 
-            var added = Adoption.AddFromPlan(workspace, plan, context.Parse.GetValue(on), coreCount, ids, context.Time);
+            var added = Adoption.AddFromPlan(workspace, plan, context.Parse.GetValue(on), coreCount, ids, context.Time, context.Parse.GetValue(rehearsal));
             if (context.Json)
             {
                 Json.Write(context.Out, new { PlanId = plan.Id, Added = added.Select(r => new { r.RunId, r.Machine, r.Cores, r.TargetLength }) });

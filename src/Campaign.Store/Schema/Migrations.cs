@@ -162,6 +162,9 @@ public static class Migrations
         new Migration(5, "when segments start running (measured queue waits)", """
             ALTER TABLE segments ADD COLUMN started_at TEXT;
             """),
+        new Migration(6, "rehearsal runs (kept out of the run logs)", """
+            ALTER TABLE tracked_runs ADD COLUMN rehearsal INTEGER NOT NULL DEFAULT 0;
+            """),
     };
 
     /// <summary>Schema version this build writes.</summary>
