@@ -66,26 +66,18 @@ public static class PlanStore
                 INSERT INTO plan_runs (plan_id, config_id, machine, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0, levels, cores, cost, median, high, status)
                 VALUES (@Id, @ConfigId, @Machine, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0, @Levels, @Cores, @Cost, @Median, @High, @Status)
                 """,
-                new
+                ConfigurationColumns.Parameters(c, new
                 {
                     Id = id,
                     r.ConfigId,
                     r.Machine,
-                    Q = c.Q.Value,
-                    Chi1x = c.Chi1.X,
-                    Chi1y = c.Chi1.Y,
-                    Chi1z = c.Chi1.Z,
-                    Chi2x = c.Chi2.X,
-                    Chi2y = c.Chi2.Y,
-                    Chi2z = c.Chi2.Z,
-                    c.Omega0,
                     Levels = string.Join(";", r.Levels),
                     r.Cores,
                     r.Cost,
                     r.Median,
                     r.High,
                     r.Status,
-                },
+                }),
                 transaction);
         }
 
@@ -109,7 +101,7 @@ public static class PlanStore
             .Select(r => new PlannedRun(
                 r.ConfigId,
                 r.Machine,
-                new BinaryConfiguration(MassRatio.From(r.Q), Spin.From(r.Chi1x, r.Chi1y, r.Chi1z, "chi1"), Spin.From(r.Chi2x, r.Chi2y, r.Chi2z, "chi2"), r.Omega0),
+                r.Configuration,
                 r.Levels.Split(';').Select(l => int.Parse(l, CultureInfo.InvariantCulture)).ToList(),
                 (int)r.Cores,
                 r.Cost,
@@ -137,27 +129,11 @@ public static class PlanStore
         public string Method { get; set; } = "";
     }
 
-    private sealed class RunRow
+    private sealed class RunRow : ConfigurationColumns
     {
         public string ConfigId { get; set; } = "";
 
         public string Machine { get; set; } = "";
-
-        public double Q { get; set; }
-
-        public double Chi1x { get; set; }
-
-        public double Chi1y { get; set; }
-
-        public double Chi1z { get; set; }
-
-        public double Chi2x { get; set; }
-
-        public double Chi2y { get; set; }
-
-        public double Chi2z { get; set; }
-
-        public double Omega0 { get; set; }
 
         public string Levels { get; set; } = "";
 

@@ -58,17 +58,9 @@ public static class RunLogStore
                 output_gb = excluded.output_gb, started = excluded.started, finished = excluded.finished, extra_json = excluded.extra_json,
                 source = excluded.source, imported_at = excluded.imported_at
             """,
-            new
+            ConfigurationColumns.Parameters(c, new
             {
                 log.RunId,
-                Q = c.Q.Value,
-                Chi1x = c.Chi1.X,
-                Chi1y = c.Chi1.Y,
-                Chi1z = c.Chi1.Z,
-                Chi2x = c.Chi2.X,
-                Chi2y = c.Chi2.Y,
-                Chi2z = c.Chi2.Z,
-                c.Omega0,
                 log.Level,
                 log.Cores,
                 log.Machine,
@@ -85,7 +77,7 @@ public static class RunLogStore
                 Extra = extraJson,
                 Source = source,
                 At = at,
-            },
+            }),
             transaction);
     }
 

@@ -7,7 +7,7 @@ using Microsoft.Data.Sqlite;
 namespace Campaign.Store;
 
 /// <summary>A tracked run as stored (mutable: the reconciler changes it and saves it in a transaction).</summary>
-public sealed class TrackedRun
+public sealed class TrackedRun : ConfigurationColumns
 {
     public string RunId { get; set; } = "";
 
@@ -22,22 +22,6 @@ public sealed class TrackedRun
     public string Folder { get; set; } = "";
 
     public double TargetLength { get; set; }
-
-    public double Q { get; set; }
-
-    public double Chi1x { get; set; }
-
-    public double Chi1y { get; set; }
-
-    public double Chi1z { get; set; }
-
-    public double Chi2x { get; set; }
-
-    public double Chi2y { get; set; }
-
-    public double Chi2z { get; set; }
-
-    public double Omega0 { get; set; }
 
     public long Position { get; set; }
 
@@ -69,9 +53,6 @@ public sealed class TrackedRun
     public bool Rehearsal { get; set; }
 
     public RunState RunState => RunStates.Parse(State);
-
-    public BinaryConfiguration Configuration =>
-        new(MassRatio.From(Q), Spin.From(Chi1x, Chi1y, Chi1z, "chi1"), Spin.From(Chi2x, Chi2y, Chi2z, "chi2"), Omega0);
 }
 
 /// <summary>A job segment of a tracked run as stored.</summary>

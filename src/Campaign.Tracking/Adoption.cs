@@ -55,18 +55,11 @@ public static class Adoption
                     Cores = cores ?? planned.Cores,
                     Folder = folder,
                     TargetLength = target,
-                    Q = c.Q.Value,
-                    Chi1x = c.Chi1.X,
-                    Chi1y = c.Chi1.Y,
-                    Chi1z = c.Chi1.Z,
-                    Chi2x = c.Chi2.X,
-                    Chi2y = c.Chi2.Y,
-                    Chi2z = c.Chi2.Z,
-                    Omega0 = c.Omega0,
                     Position = position++,
                     State = "planned",
                     Rehearsal = rehearsal,
                 };
+                run.SetConfiguration(c);
                 var full = Path.Combine(workspace.Root, folder);
                 Directory.CreateDirectory(full);
                 File.WriteAllText(Path.Combine(full, "run.json"), JsonSerializer.Serialize(new
