@@ -11,7 +11,7 @@ public class EstimateWorkflowTests
     private static TempFolder Workspace()
     {
         var folder = new TempFolder();
-        Assert.Equal(0, CliRun.Of(folder.Path, "demo", "ws", "--skip-run").ExitCode);
+        Assert.Equal(0, CliRun.Demo(folder.Path, "ws").ExitCode);
         return folder;
     }
 
@@ -73,7 +73,7 @@ public class EstimateWorkflowTests
     public void A_bad_log_file_imports_nothing_and_lists_every_problem()
     {
         using var folder = new TempFolder();
-        CliRun.Of(folder.Path, "demo", "ws", "--skip-run");
+        CliRun.Demo(folder.Path, "ws");
         var db = Path.Combine(folder.Path, "ws", "campaign.db");
         var lines = File.ReadAllLines(DemoFile("run-logs.csv")).Take(6).ToList();
         lines[2] = lines[2].Replace(",halyard,", ",nowhere,", StringComparison.Ordinal).Replace(",gunwale,", ",nowhere,", StringComparison.Ordinal);
@@ -93,7 +93,7 @@ public class EstimateWorkflowTests
     public void A_repeated_run_id_is_refused_unless_replace()
     {
         using var folder = new TempFolder();
-        CliRun.Of(folder.Path, "demo", "ws", "--skip-run");
+        CliRun.Demo(folder.Path, "ws");
         File.WriteAllLines(Path.Combine(folder.Path, "again.csv"), File.ReadAllLines(DemoFile("run-logs.csv")).Take(3));
         var refused = CliRun.Of(folder.Path, "--dir", "ws", "logs", "import", "again.csv");
         Assert.Equal(2, refused.ExitCode);

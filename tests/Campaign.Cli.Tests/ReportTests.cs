@@ -15,7 +15,7 @@ public sealed class ReportTests : IDisposable
 
     private string Report()
     {
-        Assert.Equal(0, CliRun.Of(_folder.Path, "demo", "ws", "--skip-run").ExitCode);
+        Assert.Equal(0, CliRun.Demo(_folder.Path, "ws").ExitCode);
         var run = CliRun.Of(_folder.Path, "--dir", "ws", "report", "--out", "ws/report", "--candidates", "ws/candidates.csv", "--replicas", "200", "--json");
         Assert.True(run.ExitCode == 0, run.Err);
         return Path.Combine(_folder.Path, "ws", "report");

@@ -9,7 +9,7 @@ public class SelectCommandTests
     private static TempFolder Demo()
     {
         var folder = new TempFolder();
-        Assert.Equal(0, CliRun.Of(folder.Path, "demo", "ws", "--skip-run").ExitCode);
+        Assert.Equal(0, CliRun.Demo(folder.Path, "ws").ExitCode);
         return folder;
     }
 

@@ -15,7 +15,7 @@ public sealed class SlurmTrackingTests : IDisposable
     {
         Environment.SetEnvironmentVariable("SLURM_CONF", SlurmCluster.ConfigFile);
         File.SetUnixFileMode(_folder.Path, (UnixFileMode)Convert.ToInt32("755", 8));
-        Assert.Equal(0, CliRun.Of(_folder.Path, "demo", "ws", "--skip-run").ExitCode);
+        Assert.Equal(0, CliRun.Demo(_folder.Path, "ws").ExitCode);
         var ws = Path.Combine(_folder.Path, "ws");
         File.WriteAllText(Path.Combine(ws, "machines", "minislurm.toml"),
             "name = \"minislurm\"\nbatch_system = \"slurm\"\ncores_per_node = 8\nmemory_per_node_gb = 2\nwall_limit_hours = 1\ncharge_whole_nodes = false\n");

@@ -40,7 +40,7 @@ public sealed class TrackingTests : IDisposable
     /// <summary>The demo workspace with its plan saved, tracking the given configurations on the workstation.</summary>
     private void Prepare(string only, string extraConfig = "", bool rehearsal = false)
     {
-        Assert.Equal(0, CliRun.Of(_folder.Path, "demo", "ws", "--skip-run").ExitCode);
+        Assert.Equal(0, CliRun.Demo(_folder.Path, "ws").ExitCode);
         if (extraConfig.Length > 0)
         {
             File.AppendAllText(Ws("campaign.toml"), extraConfig);
@@ -205,7 +205,7 @@ public sealed class TrackingTests : IDisposable
     [Fact]
     public void The_payload_resumed_from_a_checkpoint_ends_in_exactly_the_state_of_an_uninterrupted_run()
     {
-        Assert.Equal(0, CliRun.Of(_folder.Path, "demo", "ws", "--skip-run").ExitCode);
+        Assert.Equal(0, CliRun.Demo(_folder.Path, "ws").ExitCode);
         string RunFolder(string name)
         {
             var folder = Path.Combine(_folder.Path, name);

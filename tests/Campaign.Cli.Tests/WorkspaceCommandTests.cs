@@ -64,7 +64,7 @@ public class WorkspaceCommandTests
     public void Demo_creates_a_workspace_and_prints_the_lengths_of_every_candidate()
     {
         using var folder = new TempFolder();
-        var run = CliRun.Of(folder.Path, "demo", "demo-ws", "--skip-run", "--json");
+        var run = CliRun.Demo(folder.Path, "demo-ws", "--json");
         Assert.Equal(0, run.ExitCode);
         var json = run.Json();
         var steps = json.GetProperty("steps");
@@ -86,7 +86,7 @@ public class WorkspaceCommandTests
     public void Forecast_of_tracked_runs_starts_from_their_state()
     {
         using var folder = new TempFolder();
-        CliRun.Of(folder.Path, "demo", "ws", "--skip-run");
+        CliRun.Demo(folder.Path, "ws");
         Assert.Equal(0, CliRun.Of(folder.Path, "--dir", "ws", "track", "--on", "workbench", "--cores", "1", "--only", "sm-q1-a00").ExitCode);
         var json = CliRun.Of(folder.Path, "--dir", "ws", "forecast", "--replicas", "200", "--json").Json();
         Assert.Equal("3 active tracked runs", json.GetProperty("source").GetString());

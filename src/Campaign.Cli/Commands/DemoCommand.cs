@@ -3,6 +3,7 @@ using System.Globalization;
 using System.Text.Json;
 using Campaign.Cli.Output;
 using Campaign.Core.CostModel;
+using Campaign.Core.Domain;
 using Campaign.Core.Selection;
 using Campaign.Store;
 
@@ -25,12 +26,33 @@ internal static class DemoCommand
         }
     }
 
+    /// <summary>
+    /// The configurations the demo rehearses: the plan's lowest, middle and highest mass ratio among the
+    /// non-precessing ones, and its first precessing one, so the short run still shows the spread of lengths.
+    /// </summary>
+    internal static IReadOnlyList<string> RehearsalSubset(Plan plan)
+    {
+        var aligned = plan.Runs.Where(r => r.Configuration.IsAligned).OrderBy(r => r.Configuration.Q.Value).ThenBy(r => r.ConfigId, StringComparer.Ordinal).ToList();
+        var picks = new List<string>();
+        foreach (var index in new[] { 0, aligned.Count / 2, aligned.Count - 1 })
+        {
+            if (index >= 0 && index < aligned.Count && !picks.Contains(aligned[index].ConfigId))
+            {
+                picks.Add(aligned[index].ConfigId);
+            }
+        }
+
+        picks.AddRange(plan.Runs.Where(r => !r.Configuration.IsAligned).Select(r => r.ConfigId).Take(1));
+        return picks;
+    }
+
     public static Command Build(CampaignApp app)
     {
         var folder = new Argument<string?>("DIR") { Description = "Folder for the demo workspace (default: a new folder under the system's temporary folder)", Arity = ArgumentArity.ZeroOrOne };
         var force = new Option<bool>("--force") { Description = "Write into a folder that is not empty" };
         var skipRun = new Option<bool>("--skip-run") { Description = "Stop after saving the plan (do not run it on the local runner)" };
-        var command = new Command("demo", "Create the demo workspace (an invented group) and run the whole job on it") { folder, force, skipRun };
+        var candidateFile = new Option<string?>("--candidates") { Description = "Use this candidate file instead of the demo group's 120 configurations (copied into the workspace as candidates.csv)", HelpName = "FILE" };
+        var command = new Command("demo", "Create the demo workspace (an invented group) and run the whole job on it") { folder, force, skipRun, candidateFile };
         app.Bind(command, context =>
         {
             var target = context.Parse.GetValue(folder) is { } given
@@ -40,21 +62,60 @@ internal static class DemoCommand
             WorkspaceCreator.Create(target, new WorkspaceTemplate(demo["campaign.toml"], EmbeddedFiles.Under("profiles/")), context.Parse.GetValue(force), context.Time);
             var candidatesPath = Path.Combine(target, "candidates.csv");
             var logsPath = Path.Combine(target, "run-logs.csv");
-            File.WriteAllText(candidatesPath, demo["candidates.csv"]);
+            var ownCandidates = context.Parse.GetValue(candidateFile);
+            if (ownCandidates is not null && !File.Exists(app.Resolve(ownCandidates)))
+            {
+                throw new InvalidInputException(new[] { $"--candidates = {ownCandidates}: no such file: expected a candidate file (CSV)" });
+            }
+
+            File.WriteAllText(candidatesPath, ownCandidates is null ? demo["candidates.csv"] : File.ReadAllText(app.Resolve(ownCandidates)));
             File.WriteAllText(logsPath, demo["run-logs.csv"]);
             TrackingCommands.WriteSegmentScript(target);
 
-            // In --json mode every step writes JSON into its own buffer; the demo prints them as one document.
+            // In --json mode every step writes JSON into its own buffer; the demo prints them as one document. For
+            // people, long tables go in full into demo-output/ and the terminal shows their head and their totals.
             var steps = new Dictionary<string, StringWriter>();
-            CommandContext Step(string name)
+            var outputs = Path.Combine(target, "demo-output");
+            Directory.CreateDirectory(outputs);
+            CommandContext Step(string name, bool live = false)
             {
-                if (!context.Json)
+                if (live && !context.Json)
                 {
                     return context;
                 }
 
                 steps[name] = new StringWriter();
                 return context with { Out = steps[name] };
+            }
+
+            void Show(string name, int head = 0, Func<string, bool>? tailFrom = null)
+            {
+                var text = steps[name].ToString();
+                if (context.Json)
+                {
+                    return;
+                }
+
+                var file = Path.Combine(outputs, name + ".txt");
+                File.WriteAllText(file, text);
+                var lines = text.TrimEnd('\n').Split('\n');
+                var tail = tailFrom is null || head >= lines.Length ? -1 : Array.FindIndex(lines, head, l => tailFrom(l));
+                if (tail < 0 || tail <= head + 3)
+                {
+                    context.Out.Write(text);
+                    return;
+                }
+
+                foreach (var line in lines.Take(head))
+                {
+                    context.Out.WriteLine(line);
+                }
+
+                context.Out.WriteLine($"  ... {tail - head} more lines: {file}");
+                foreach (var line in lines.Skip(tail))
+                {
+                    context.Out.WriteLine(line);
+                }
             }
 
             var o = context.Json ? TextWriter.Null : context.Out;
@@ -67,6 +128,7 @@ internal static class DemoCommand
             o.WriteLine("== 1. How long must each planned run be? (post-Newtonian inspiral + merger + ringdown)");
             var lengths = LengthCommand.ForFile(candidatesPath, "candidates.csv", context, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
             LengthCommand.Write(Step("lengths"), lengths, config.Length);
+            Show("lengths", 10, l => l.StartsWith("Lengths", StringComparison.Ordinal) || !l.StartsWith("sm-", StringComparison.Ordinal));
             o.WriteLine();
 
             o.WriteLine("== 2. Import the group's past runs");
@@ -77,39 +139,58 @@ internal static class DemoCommand
             o.WriteLine("== 3. Fit the cost model to them");
             var (modelId, model) = ModelCommand.FitAndStore(workspace, new CostFitOptions { Robust = true }, context.Time);
             ModelCommand.Write(Step("model"), modelId, context.Time.GetUtcNow().ToString("O", CultureInfo.InvariantCulture), model);
+            Show("model");
             o.WriteLine();
 
             o.WriteLine("== 4. Estimate the proposal: core-hours, wall time, segments, charges and storage per run and level");
-            EstimateCommand.Write(Step("estimate"), workspace, candidatesPath, "candidates.csv", new EstimateOptions { EccentricityTrials = 2 }, "table");
+            var estimateOptions = new EstimateOptions { EccentricityTrials = 2 };
+            EstimateCommand.Write(Step("estimate"), workspace, candidatesPath, "candidates.csv", estimateOptions, "table");
+            Show("estimate", 14, l => l.StartsWith("Core-hours consumed", StringComparison.Ordinal));
+            if (!context.Json)
+            {
+                var proposal = new StringWriter();
+                EstimateCommand.Write(context with { Out = proposal }, workspace, candidatesPath, "candidates.csv", estimateOptions, "md");
+                File.WriteAllText(Path.Combine(target, "proposal.md"), proposal.ToString());
+                o.WriteLine($"The proposal table in Markdown: {Path.Combine(target, "proposal.md")}");
+            }
+
             o.WriteLine();
 
             o.WriteLine("== 5. Choose what to run within the allocations (coverage of the parameter space, costs at the 80th percentile) and save the plan");
             SelectCommand.Run(Step("select"), workspace, candidatesPath, "candidates.csv", new SelectOptions(SelectionObjective.Coverage, null, 0.8, Array.Empty<string>(), null, 2, 1500, 10, Save: true));
+            Show("select", 16, l => l.StartsWith("budget ", StringComparison.Ordinal));
             o.WriteLine();
 
             o.WriteLine("== 6. Forecast: when will it finish, and will the allocation last?");
             RunNested(app, context, Step("forecast"), new[] { "--dir", target, "forecast", "--replicas", "1000", "--runs", "5" });
+            Show("forecast");
             o.WriteLine();
 
             if (!context.Parse.GetValue(skipRun))
             {
-                o.WriteLine("== 7. Run the plan, scaled down, on this machine's local runner (demo payload; seconds instead of weeks)");
-                var trackArgs = new[] { "--dir", target, "track", "--on", "workbench", "--cores", "1", "--rehearsal" };
+                o.WriteLine("== 7. Run part of the plan, scaled down, on this machine's local runner (demo payload; seconds instead of weeks)");
+                var plan = PlanStore.Current(workspace.Connection)!;
+                var chosen = RehearsalSubset(plan);
+                o.WriteLine($"{chosen.Count} of the plan's {plan.Runs.Count} configurations, every level, to keep the demo short: {string.Join(", ", chosen)}.");
+                var trackArgs = new[] { "--dir", target, "track", "--on", "workbench", "--cores", "1", "--rehearsal", "--only", string.Join(',', chosen) };
                 var watchArgs = new[] { "--dir", target, "watch", "--interval", "1", "--until-done" };
                 RunNested(app, context, Step("track"), trackArgs);
+                Show("track");
 
                 // One run is made to go bad on purpose (its constraint norm grows exponentially), to show the tracker
                 // holding it with a reason instead of burning more time on it.
-                var unlucky = Directory.EnumerateDirectories(Path.Combine(target, config.Tracking.RunsFolder)).Order(StringComparer.Ordinal).Last();
-                File.WriteAllText(Path.Combine(unlucky, "payload.json"), "{\"instability_rate\": 0.02}");
-                o.WriteLine($"(The demo payload of {Path.GetFileName(unlucky)} is set to go unstable: watch it being held.)");
-                RunNested(app, context, Step("watch"), watchArgs);
+                var unlucky = TrackingStore.Runs(workspace.Connection).Where(r => r.ConfigId == chosen[Math.Min(1, chosen.Count - 1)]).MaxBy(r => r.Level)!;
+                File.WriteAllText(Path.Combine(workspace.Root, unlucky.Folder, "payload.json"), "{\"instability_rate\": 0.02}");
+                o.WriteLine($"(The demo payload of {unlucky.RunId} is set to go unstable: watch it being held.)");
+                RunNested(app, context, Step("watch", live: true), watchArgs);
                 RunNested(app, context, Step("status"), new[] { "--dir", target, "status" });
+                Show("status");
                 o.WriteLine();
             }
 
             o.WriteLine("== 8. The report: plots and tables for the group and the review panel");
             RunNested(app, context, Step("report"), new[] { "--dir", target, "report", "--out", Path.Combine(target, "report"), "--candidates", candidatesPath });
+            Show("report");
             o.WriteLine();
 
             if (context.Json)

@@ -178,7 +178,7 @@ internal static class ForecastCommand
         var late = result.MostLikelyLate(5);
         if (late.Count > 0)
         {
-            o.WriteLine("Most likely to be late (finish after the allocation ends, or not at all within it): " + string.Join(", ", late.Select(r => $"{r.Id} ({Format.Fixed(r.ProbabilityLate * 100, 0)}%)")));
+            o.WriteLine("Most likely to be late (finish after the allocation ends, or not at all within it): " + string.Join(", ", late.Select(r => $"{r.Id} ({Format.Fixed(r.ProbabilityLate * 100, r.ProbabilityLate < 0.01 ? 1 : 0)}%)")));
             o.WriteLine();
         }
 

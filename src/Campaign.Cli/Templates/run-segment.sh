@@ -8,7 +8,7 @@
 # wall-time limit); append "t norm" lines to progress.dat; write DONE when the run has finished.
 cd "$CAMPAIGN_RUN_DIR" || exit 2
 # The demo payload's pace (steps of 1 M per second), so that runs need several segments.
-export DEMO_STEPS_PER_SECOND=${DEMO_STEPS_PER_SECOND:-1500}
+export DEMO_STEPS_PER_SECOND=${DEMO_STEPS_PER_SECOND:-800}
 if [ -n "${CAMPAIGN_EXE_ARG:-}" ]; then
   exec "$CAMPAIGN_EXE" "$CAMPAIGN_EXE_ARG" __demo-payload "$CAMPAIGN_RUN_DIR"
 fi

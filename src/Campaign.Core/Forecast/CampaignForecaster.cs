@@ -203,6 +203,7 @@ public static class CampaignForecaster
         var submitted = 0;
         var free = profile.MaxJobsRunning;
         var charged = 0.0;
+        var committed = 0.0; // worst cases of the running segments, as the tracker's budget guard counts them
         var now = 0.0;
         var allFinished = true;
 
@@ -230,7 +231,7 @@ public static class CampaignForecaster
                 var perHour = profile.ChargedCoreHours(run.Cores, 1);
                 var length = Math.Min(remaining[i], usable);
                 var worst = perHour * profile.WallLimitHours;
-                if (now > allocationEnd || charged + worst > budget)
+                if (now > allocationEnd || charged + committed + worst > budget)
                 {
                     submitted--; // the budget guard holds it back for good: it will not finish within this allocation
                     allFinished = false;
@@ -238,9 +239,33 @@ public static class CampaignForecaster
                     continue;
                 }
 
+                if (myWindows.Length > 0 && allocation is not null && allocation.Windows.Count > 0)
+                {
+                    // Use-it-or-lose-it windows: like the tracker's guard, a segment starts only while the window it
+                    // starts in has room for its worst case (charges counted in the window where segments end).
+                    var k = Array.FindIndex(windowHours, w => w.Start <= now && now <= w.End);
+                    if (k < 0 || windowCharge[myWindows[k], replica] + committed + worst > windows[myWindows[k]].Amount)
+                    {
+                        var nextWindow = windowHours.Select(w => w.Start).Where(s => s > now).DefaultIfEmpty(double.PositiveInfinity).Min();
+                        var retry = running.TryPeek(out _, out var ends) && k >= 0 ? Math.Min(ends + 1e-9, nextWindow) : nextWindow;
+                        if (double.IsPositiveInfinity(retry))
+                        {
+                            submitted--; // no later window: held back for good
+                            allFinished = false;
+                            Submit();
+                            continue;
+                        }
+
+                        // Waits for room; submitted again (with a fresh queue wait) when a new window opens.
+                        eligible.Enqueue(i, retry == nextWindow ? retry + Wait() : retry);
+                        continue;
+                    }
+                }
+
                 var failed = random.NextDouble() < options.SegmentFailureProbability;
                 var elapsed = failed ? length * random.NextDouble() : length;
                 free--;
+                committed += worst;
                 segmentCount[replica, i]++;
                 running.Enqueue((i, length, failed, now), now + elapsed);
             }
@@ -254,10 +279,10 @@ public static class CampaignForecaster
                 var run = runs[i];
                 var charge = profile.ChargedCoreHours(run.Cores, elapsed);
                 charged += charge;
-                var mid = (started + now) / 2;
+                committed -= profile.ChargedCoreHours(run.Cores, 1) * profile.WallLimitHours;
                 for (var k = 0; k < myWindows.Length; k++)
                 {
-                    if (windowHours[k].Start <= mid && mid <= windowHours[k].End)
+                    if (windowHours[k].Start <= now && now <= windowHours[k].End)
                     {
                         windowCharge[myWindows[k], replica] += charge;
                         break;

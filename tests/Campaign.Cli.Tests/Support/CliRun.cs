@@ -18,5 +18,12 @@ public sealed record CliRun(int ExitCode, string Out, string Err)
         return new CliRun(code, output.ToString(), error.ToString());
     }
 
+    /// <summary>The demo's hand-picked 16 candidates (the full demo list has 120; tests pin counts on the small one).</summary>
+    public static string SmallCandidates => Path.Combine(RepositoryRoot.Path, "demo-campaign", "candidates-small.csv");
+
+    /// <summary>campaign demo FOLDER --skip-run on the small candidate list, with the fixed clock.</summary>
+    public static CliRun Demo(string currentDirectory, string folder, params string[] extra) =>
+        Of(currentDirectory, new[] { "demo", folder, "--skip-run", "--candidates", SmallCandidates }.Concat(extra).ToArray());
+
     public JsonElement Json() => JsonDocument.Parse(Out).RootElement;
 }

@@ -74,7 +74,7 @@ public class CampaignForecasterTests
     }
 
     [Fact]
-    public void Charges_land_in_the_window_where_the_segments_run()
+    public void A_windows_share_caps_what_starts_in_it_and_the_rest_waits_for_the_next_window()
     {
         var windows = new[]
         {
@@ -82,12 +82,32 @@ public class CampaignForecasterTests
             new AllocationWindow(new DateOnly(2027, 1, 3), new DateOnly(2027, 12, 31), 1000),
         };
         var allocation = new Allocation("m", 1030, AllocationUnit.CoreHours, new DateOnly(2027, 1, 1), new DateOnly(2027, 12, 31), windows);
-        // 100 h on 1 core: segments 0-23.5, 23.5-47 (both mid-points on Jan 1-2), then the rest after Jan 3.
+        // 100 h on 1 core, segments of 23.5 h charged at worst 24 h. The first window (30 core-hours) takes the
+        // first segment (0-23.5 h); a second would risk 23.5 + 24 > 30, so it waits for the second window (Jan 3,
+        // hour 48), where the remaining 76.5 h run through: finish at 124.5 h. Charges land where segments end.
         var result = Forecast(new[] { Run("a", 100) }, Machine(), allocation);
-        Assert.Equal(47, result.Windows[0].MeanCharge, 9);
-        Assert.Equal(1, result.Windows[0].ProbabilityOver);
-        Assert.Equal(53, result.Windows[1].MeanCharge, 9);
+        Assert.Equal(Start.AddHours(124.5), result.Finish.P50);
+        Assert.Equal(23.5, result.Windows[0].MeanCharge, 9);
+        Assert.Equal(0, result.Windows[0].ProbabilityOver);
+        Assert.Equal(76.5, result.Windows[1].MeanCharge, 9);
         Assert.Equal(1, result.Windows[1].ProbabilityUnused);
+        Assert.Equal(1, result.ProbabilityFits);
+    }
+
+    [Fact]
+    public void Running_segments_count_at_their_worst_case_against_a_window()
+    {
+        // Two runs of one segment each (10 h, worst case 24 h on 1 core) and a 40 core-hour window: the second may
+        // start only after the first has ended and been charged its 10 h (10 + 24 <= 40), as the tracker's guard.
+        var windows = new[]
+        {
+            new AllocationWindow(new DateOnly(2027, 1, 1), new DateOnly(2027, 6, 30), 40),
+            new AllocationWindow(new DateOnly(2027, 7, 1), new DateOnly(2027, 12, 31), 40),
+        };
+        var allocation = new Allocation("m", 80, AllocationUnit.CoreHours, new DateOnly(2027, 1, 1), new DateOnly(2027, 12, 31), windows);
+        var result = Forecast(new[] { Run("a", 10), Run("b", 10) }, Machine(running: 2), allocation);
+        Assert.Equal(20, (result.Finish.P50!.Value - Start).TotalHours, 6); // waits for the end to within a few microseconds
+        Assert.Equal(20, result.Windows[0].MeanCharge, 9);
     }
 
     [Fact]
