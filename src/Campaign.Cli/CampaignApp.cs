@@ -77,6 +77,7 @@ public sealed class CampaignApp
         {
             root.Add(command);
         }
+        root.Add(BackupCommand.Build(this));
         root.Add(DemoCommand.Build(this));
         return root;
     }

@@ -23,8 +23,8 @@ public static class BatchSystemFactory
             IBatchSystem adapter = machine.BatchSystem switch
             {
                 BatchSystemKind.Local => new LocalBatchSystem(new LocalOptions(Path.Combine(workspace.Root, "local-runner", machine.Name), machine.CoresPerNode, supervisor)),
-                BatchSystemKind.Slurm => new SlurmBatchSystem(new SlurmOptions()),
-                _ => new PbsBatchSystem(new PbsOptions()),
+                BatchSystemKind.Slurm => new SlurmBatchSystem(new SlurmOptions { Partition = machine.Partition, Account = machine.Account }),
+                _ => new PbsBatchSystem(new PbsOptions { Queue = machine.Partition, Account = machine.Account }),
             };
             systems[machine.Name] = new ResilientBatchSystem(adapter, retry, time);
         }

@@ -94,4 +94,27 @@ public class WorkspaceCommandTests
         Assert.Equal(3, json.GetProperty("runs").GetArrayLength());
         Assert.Equal(2, CliRun.Of(folder.Path, "--dir", "ws", "forecast", "--replicas", "5").ExitCode);
     }
+
+    [Fact]
+    public void Backup_copies_a_consistent_workspace_that_opens_as_one_and_refuses_a_folder_in_use()
+    {
+        using var folder = new TempFolder();
+        CliRun.Demo(folder.Path, "ws");
+        Assert.Equal(0, CliRun.Of(folder.Path, "--dir", "ws", "track", "--on", "workbench", "--cores", "1", "--only", "sm-q1-a00").ExitCode);
+        var json = CliRun.Of(folder.Path, "--dir", "ws", "backup", "copy", "--json").Json();
+        Assert.Equal("ok", json.GetProperty("integrity").GetString());
+        Assert.Contains("machines/halyard.toml", json.GetProperty("files").EnumerateArray().Select(f => f.GetString()));
+        Assert.Equal(UnixFileMode.UserRead | UnixFileMode.UserWrite, File.GetUnixFileMode(Path.Combine(folder.Path, "copy", "campaign.db")));
+
+        // The copy is a workspace with the same history: same logs, plan and tracked runs.
+        string Summary(string dir) => string.Join("|",
+            CliRun.Of(folder.Path, "--dir", dir, "logs", "list", "--json").Json().GetProperty("runs").GetArrayLength(),
+            CliRun.Of(folder.Path, "--dir", dir, "status", "--json").Json().GetProperty("runs").GetArrayLength());
+        Assert.Equal(Summary("ws"), Summary("copy"));
+        Assert.Equal(0, CliRun.Of(folder.Path, "--dir", "copy", "check").ExitCode);
+
+        var again = CliRun.Of(folder.Path, "--dir", "ws", "backup", "copy");
+        Assert.Equal(3, again.ExitCode);
+        Assert.Contains("not empty", again.Err, StringComparison.Ordinal);
+    }
 }

@@ -12,8 +12,11 @@ public static partial class MachineProfileReader
     {
         "name", "description", "batch_system", "cores_per_node", "memory_per_node_gb", "wall_limit_hours",
         "charge_whole_nodes", "charge_factor", "relative_speed", "max_jobs_queued", "max_jobs_running",
-        "queue_wait_median_hours", "queue_wait_p90_hours",
+        "queue_wait_median_hours", "queue_wait_p90_hours", "partition", "account",
     };
+
+    /// <summary>Allowed partition (queue) and account names: what the error message says.</summary>
+    public const string SiteNameRule = "1 to 64 characters: letters, digits, '.', '-' or '_', starting with a letter or digit";
 
     /// <summary>Allowed machine names: what the error message says.</summary>
     public const string NameRule = "a name of 1 to 32 characters: lower-case letters, digits, '-' or '_', starting with a letter";
@@ -44,6 +47,20 @@ public static partial class MachineProfileReader
         var running = fields.Integer("max_jobs_running", false, 1, 1_000_000) ?? queued;
         var waitMedian = fields.Number("queue_wait_median_hours", false, 0, 8760, "hours") ?? 2.0;
         var waitP90 = fields.Number("queue_wait_p90_hours", false, 0, 8760, "hours") ?? Math.Max(waitMedian * 4, waitMedian);
+        string? SiteName(string field)
+        {
+            var value = fields.String(field, required: false);
+            if (value is not null && !SiteNamePattern().IsMatch(value))
+            {
+                fields.Problem(field, SiteNameRule);
+                return null;
+            }
+
+            return value;
+        }
+
+        var partition = SiteName("partition");
+        var account = SiteName("account");
         if (running > queued)
         {
             fields.Problem("max_jobs_running", $"at most max_jobs_queued = {queued}");
@@ -66,11 +83,14 @@ public static partial class MachineProfileReader
             _ => BatchSystemKind.Local,
         };
         return new MachineProfile(name!, description, kind, (int)coresPerNode!.Value, memory!.Value, wall!.Value, wholeNodes!.Value,
-            chargeFactor, speed, (int)queued, (int)running, waitMedian, waitP90);
+            chargeFactor, speed, (int)queued, (int)running, waitMedian, waitP90, partition, account);
     }
 
     /// <summary>True when <paramref name="name"/> is a valid machine name.</summary>
     public static bool IsValidName(string name) => NamePattern().IsMatch(name);
+
+    [GeneratedRegex("^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$")]
+    private static partial Regex SiteNamePattern();
 
     [GeneratedRegex("^[a-z][a-z0-9_-]{0,31}$")]
     private static partial Regex NamePattern();

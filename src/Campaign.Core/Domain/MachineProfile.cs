@@ -17,6 +17,8 @@ namespace Campaign.Core.Domain;
 /// <param name="MaxJobsRunning">Most jobs one user may have running.</param>
 /// <param name="QueueWaitMedianHours">Typical wait in the queue before a job starts (median), hours.</param>
 /// <param name="QueueWaitP90Hours">90th percentile of the queue wait, hours.</param>
+/// <param name="Partition">Slurm partition or PBS queue to submit to; null for the site's default.</param>
+/// <param name="Account">Project account charged; null for the user's default.</param>
 public sealed record MachineProfile(
     string Name,
     string Description,
@@ -30,7 +32,9 @@ public sealed record MachineProfile(
     int MaxJobsQueued,
     int MaxJobsRunning,
     double QueueWaitMedianHours,
-    double QueueWaitP90Hours)
+    double QueueWaitP90Hours,
+    string? Partition = null,
+    string? Account = null)
 {
     /// <summary>Nodes a job of <paramref name="cores"/> cores occupies.</summary>
     public int NodesFor(int cores) => (cores + CoresPerNode - 1) / CoresPerNode;

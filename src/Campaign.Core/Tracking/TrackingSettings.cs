@@ -89,6 +89,22 @@ public sealed record TrackingSettings
         checks.InRange("growth_rate_limit", GrowthRateLimit, 1e-9, 100);
         checks.InRange("reserve_core_hours", ReserveCoreHours, 0, 1e12);
         checks.InRange("reconcile_seconds", ReconcileSeconds, 1, 86_400);
+        // Paths read or globbed under each run's folder must stay inside it: a config cannot point the tracker at
+        // other files (no absolute paths, no '..').
+        foreach (var (field, value) in new[] { ("checkpoint_pattern", CheckpointPattern), ("progress_file", ProgressFile), ("done_marker", DoneMarker) })
+        {
+            if (value.Length == 0 || value.StartsWith('/') || value.StartsWith('\\') || value.Contains(':', StringComparison.Ordinal)
+                || value.Split('/', '\\').Any(part => part == ".."))
+            {
+                checks.Add(field, value, "a relative path inside the run's folder (not absolute, no '..')");
+            }
+        }
+
+        if (CheckpointMarker.IndexOfAny(new[] { '/', '\\' }) >= 0 || CheckpointMarker.Contains("..", StringComparison.Ordinal))
+        {
+            checks.Add("checkpoint_marker", CheckpointMarker, "a file-name suffix (no '/' and no '..')");
+        }
+
         if (WarningSignal.Length > 0 && !new[] { "USR1", "USR2", "TERM", "INT", "HUP", "URG" }.Contains(WarningSignal, StringComparer.Ordinal))
         {
             checks.Add("warning_signal", WarningSignal, "one of USR1, USR2, TERM, INT, HUP, URG, or empty for none");

@@ -35,6 +35,18 @@ public class MachineProfileReaderTests
     }
 
     [Fact]
+    public void Partition_and_account_are_read_and_cannot_smuggle_options_or_shell_text()
+    {
+        var p = MachineProfileReader.Read(Valid + "\npartition = \"cpu-long\"\naccount = \"saltmarsh.2027\"", "p.toml");
+        Assert.Equal(("cpu-long", "saltmarsh.2027"), (p.Partition, p.Account));
+        foreach (var hostile in new[] { "--wrap=id", "cpu; rm -rf ~", "$(id)", "a b", "", "-q" })
+        {
+            var problems = Problems(Valid + "\npartition = \"" + hostile + "\"");
+            Assert.Equal($"p.toml:14:13: partition = \"{hostile}\": expected {MachineProfileReader.SiteNameRule}", Assert.Single(problems));
+        }
+    }
+
+    [Fact]
     public void Whole_node_charging_rounds_cores_up_to_nodes()
     {
         var p = MachineProfileReader.Read(Valid, "p.toml");
@@ -72,7 +84,7 @@ public class MachineProfileReaderTests
         Assert.Equal(
             new[]
             {
-                "p.toml:2:19: unknown field 'wall_limit_hour': expected one of name, description, batch_system, cores_per_node, memory_per_node_gb, wall_limit_hours, charge_whole_nodes, charge_factor, relative_speed, max_jobs_queued, max_jobs_running, queue_wait_median_hours, queue_wait_p90_hours",
+                "p.toml:2:19: unknown field 'wall_limit_hour': expected one of name, description, batch_system, cores_per_node, memory_per_node_gb, wall_limit_hours, charge_whole_nodes, charge_factor, relative_speed, max_jobs_queued, max_jobs_running, queue_wait_median_hours, queue_wait_p90_hours, partition, account",
                 "p.toml:1:1: batch_system is missing: expected one of \"local\", \"slurm\", \"pbs\"",
                 "p.toml:1:1: cores_per_node is missing: expected an integer from 1 to 100000",
                 "p.toml:1:1: memory_per_node_gb is missing: expected a number greater than 0 and at most 1000000 GB",

@@ -49,6 +49,29 @@ public class WorkspaceConfigReaderTests
         Assert.Throws<InvalidInputException>(() => WorkspaceConfigReader.Read(text, "c.toml", Known)).Problems;
 
     [Fact]
+    public void Tracking_paths_cannot_leave_the_run_folder()
+    {
+        var text = Valid + """
+
+            [tracking]
+            progress_file = "../../../home/someone/.ssh/id_rsa"
+            checkpoint_pattern = "/etc/*"
+            done_marker = "logs/../../DONE"
+            checkpoint_marker = "/../x"
+            """;
+        var problems = Problems(text);
+        Assert.Equal(new[]
+        {
+            "c.toml:38:22: tracking.checkpoint_pattern = \"/etc/*\": expected a relative path inside the run's folder (not absolute, no '..')",
+            "c.toml:37:17: tracking.progress_file = \"../../../home/someone/.ssh/id_rsa\": expected a relative path inside the run's folder (not absolute, no '..')",
+            "c.toml:39:15: tracking.done_marker = \"logs/../../DONE\": expected a relative path inside the run's folder (not absolute, no '..')",
+            "c.toml:40:21: tracking.checkpoint_marker = \"/../x\": expected a file-name suffix (no '/' and no '..')",
+        }, problems);
+        var fine = WorkspaceConfigReader.Read(Valid + "\n[tracking]\nprogress_file = \"out/progress.dat\"\n", "c.toml", Known);
+        Assert.Equal("out/progress.dat", fine.Tracking.ProgressFile);
+    }
+
+    [Fact]
     public void A_valid_config_is_read()
     {
         var config = WorkspaceConfigReader.Read(Valid, "c.toml", Known);
