@@ -22,6 +22,11 @@ public static class CampaignDatabase
             Pooling = false,
             DefaultTimeout = (int)BusyTimeout.TotalSeconds,
         };
+        if (path != ":memory:")
+        {
+            OwnerOnly.Create(path);
+        }
+
         var connection = new SqliteConnection(builder.ToString());
         try
         {

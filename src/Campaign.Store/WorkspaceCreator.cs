@@ -65,7 +65,7 @@ public static class WorkspaceCreator
         }
 
         var configPath = Workspace.PathOf(root, Workspace.ConfigFileName);
-        File.WriteAllText(configPath, template.ConfigText);
+        OwnerOnly.WriteAllText(configPath, template.ConfigText);
         written.Add(configPath);
 
         var databasePath = Workspace.PathOf(root, Workspace.DatabaseFileName);

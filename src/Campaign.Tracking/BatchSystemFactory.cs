@@ -15,7 +15,12 @@ public static class BatchSystemFactory
     /// Builds the adapters: local machines get a local runner with its state in LOCAL-RUNNER/MACHINE under the
     /// workspace and as many slots as the machine's cores per node; Slurm and PBS machines use their commands.
     /// </summary>
-    public static IReadOnlyDictionary<string, IBatchSystem> Create(Workspace workspace, SupervisorCommand supervisor, RetryOptions retry, TimeProvider time)
+    /// <param name="workspace">The workspace whose machines get adapters.</param>
+    /// <param name="supervisor">How the local runner starts its job supervisors.</param>
+    /// <param name="retry">The retry and timeout settings of the decorator.</param>
+    /// <param name="time">The clock.</param>
+    /// <param name="inside">Optional: wraps each adapter inside the decorator (fault injection in the reliability tests).</param>
+    public static IReadOnlyDictionary<string, IBatchSystem> Create(Workspace workspace, SupervisorCommand supervisor, RetryOptions retry, TimeProvider time, Func<string, IBatchSystem, IBatchSystem>? inside = null)
     {
         var systems = new Dictionary<string, IBatchSystem>(StringComparer.Ordinal);
         foreach (var machine in workspace.Machines.Values)
@@ -26,7 +31,7 @@ public static class BatchSystemFactory
                 BatchSystemKind.Slurm => new SlurmBatchSystem(new SlurmOptions { Partition = machine.Partition, Account = machine.Account }),
                 _ => new PbsBatchSystem(new PbsOptions { Queue = machine.Partition, Account = machine.Account }),
             };
-            systems[machine.Name] = new ResilientBatchSystem(adapter, retry, time);
+            systems[machine.Name] = new ResilientBatchSystem(inside is null ? adapter : inside(machine.Name, adapter), retry, time);
         }
 
         return systems;

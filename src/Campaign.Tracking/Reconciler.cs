@@ -50,34 +50,71 @@ public sealed class Reconciler
         var runs = TrackingStore.Runs(Db).ToDictionary(r => r.RunId, StringComparer.Ordinal);
         var open = TrackingStore.Segments(Db).Where(s => s.Phase != "ended").ToList();
 
+        // A machine whose batch system cannot be reached this cycle (after the decorator's retries) is left as it
+        // is: nothing is concluded about its jobs and nothing new is submitted to it; the next cycle tries again.
+        var unreachable = new HashSet<string>(StringComparer.Ordinal);
         foreach (var segment in open.Where(s => s.Phase == "intent").ToList())
         {
-            await ResolveIntent(runs[segment.RunId], segment, cancellationToken).ConfigureAwait(false);
-        }
-
-        open = TrackingStore.Segments(Db).Where(s => s.Phase == "submitted").ToList();
-        foreach (var group in open.GroupBy(s => runs[s.RunId].Machine))
-        {
-            var batch = Batch(group.Key);
-            var statuses = await batch.QueryAsync(group.Select(s => s.JobId!).ToList(), cancellationToken).ConfigureAwait(false);
-            _queries[group.Key] = _queries.GetValueOrDefault(group.Key) + 1;
-            foreach (var segment in group.OrderBy(s => s.Number))
+            var machine = runs[segment.RunId].Machine;
+            if (!unreachable.Contains(machine) && !await Guarded(machine, "looking up an unconfirmed submission", () => ResolveIntent(runs[segment.RunId], segment, cancellationToken)).ConfigureAwait(false))
             {
-                await Observe(runs[segment.RunId], segment, statuses[segment.JobId!], cancellationToken).ConfigureAwait(false);
+                unreachable.Add(machine);
             }
         }
 
-        foreach (var run in runs.Values.Where(r => r.RunState == RunState.Running))
+        open = TrackingStore.Segments(Db).Where(s => s.Phase == "submitted").ToList();
+        foreach (var group in open.GroupBy(s => runs[s.RunId].Machine).Where(g => !unreachable.Contains(g.Key)))
         {
-            await WatchHealth(run, cancellationToken).ConfigureAwait(false);
+            var batch = Batch(group.Key);
+            IReadOnlyDictionary<string, JobStatus>? statuses = null;
+            if (!await Guarded(group.Key, "querying its jobs", async () => statuses = await batch.QueryAsync(group.Select(s => s.JobId!).ToList(), cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
+            {
+                unreachable.Add(group.Key);
+                continue;
+            }
+
+            _queries[group.Key] = _queries.GetValueOrDefault(group.Key) + 1;
+            foreach (var segment in group.OrderBy(s => s.Number))
+            {
+                var status = statuses![segment.JobId!];
+                await Observe(runs[segment.RunId], segment, status, cancellationToken).ConfigureAwait(false);
+                if (status.State.IsActive() && segment.CancelReason is { Length: > 0 })
+                {
+                    // A cancel that did not get through before (the batch system was unreachable): try again.
+                    await Guarded(group.Key, $"cancelling job {segment.JobId} again", () => batch.CancelAsync(segment.JobId!, cancellationToken)).ConfigureAwait(false);
+                }
+            }
         }
 
-        await SubmitNeeded(runs.Values.OrderBy(r => r.Position).ToList(), cancellationToken).ConfigureAwait(false);
+        foreach (var run in runs.Values.Where(r => r.RunState == RunState.Running && !unreachable.Contains(r.Machine)))
+        {
+            if (!await Guarded(run.Machine, $"acting on the health of {run.RunId}", () => WatchHealth(run, cancellationToken)).ConfigureAwait(false))
+            {
+                unreachable.Add(run.Machine);
+            }
+        }
+
+        await SubmitNeeded(runs.Values.OrderBy(r => r.Position).ToList(), unreachable, cancellationToken).ConfigureAwait(false);
 
         var failures = await new Notifier(Settings.NotifyCommand, _workspace.Root).SendAsync(_notices, cancellationToken).ConfigureAwait(false);
         _messages.AddRange(failures);
         var all = TrackingStore.Runs(Db);
         return new TickReport(_submitted, _ended, _finished, _held, all.Count(r => r.RunState == RunState.WaitingBudget), all.Count(r => r.RunState.IsActive()), _queries, _messages.ToList());
+    }
+
+    /// <summary>Runs a batch-system call; on a batch-system error notes it for the report and returns false.</summary>
+    private async Task<bool> Guarded(string machine, string what, Func<Task> call)
+    {
+        try
+        {
+            await call().ConfigureAwait(false);
+            return true;
+        }
+        catch (BatchSystemException e)
+        {
+            _messages.Add($"{machine}: batch system error while {what} ({e.Message}); left as it was, tried again next cycle");
+            return false;
+        }
     }
 
     private IBatchSystem Batch(string machine) =>
@@ -348,11 +385,11 @@ public sealed class Reconciler
     }
 
     /// <summary>Submits the segments runs need, oldest plan position first, within the budget guard.</summary>
-    private async Task SubmitNeeded(IReadOnlyList<TrackedRun> runs, CancellationToken cancellationToken)
+    private async Task SubmitNeeded(IReadOnlyList<TrackedRun> runs, IReadOnlySet<string> unreachable, CancellationToken cancellationToken)
     {
         var segments = TrackingStore.Segments(Db);
         var committed = segments.Where(s => s.Phase != "ended").GroupBy(s => runs.First(r => r.RunId == s.RunId).Machine).ToDictionary(g => g.Key, g => g.Sum(s => s.WorstCaseCoreHours));
-        foreach (var run in runs)
+        foreach (var run in runs.Where(r => !unreachable.Contains(r.Machine)))
         {
             var openSegments = segments.Where(s => s.RunId == run.RunId && s.Phase != "ended").ToList();
             var needsFirst = run.RunState is RunState.Planned or RunState.WaitingBudget && openSegments.Count == 0;

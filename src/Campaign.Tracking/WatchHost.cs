@@ -30,6 +30,7 @@ public static class WatchHost
             }
         };
 
+        Campaign.Store.OwnerOnly.Create(Path.Combine(workspace, "scheduler.db"));
         var store = "Data Source=" + Path.Combine(workspace, "scheduler.db") + ";Pooling=False";
         var scheduler = await QuartzSchedulerBuilder.Create(q =>
         {

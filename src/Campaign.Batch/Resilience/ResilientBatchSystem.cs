@@ -14,8 +14,7 @@ public sealed record RetryOptions(int Attempts, TimeSpan FirstDelay, TimeSpan Ma
 /// <summary>
 /// The host's decorator around an adapter: a timeout on every call and retries with exponential backoff for
 /// transient errors (and timeouts). Permanent errors pass through at once, unchanged. Submissions are retried
-/// too, so an adapter's submit must be safe to repeat or the host must look the job up by name before a
-/// retry (the tracking loop does).
+/// too, but never blindly: before a retry the job is looked up by its name (see <see cref="SubmitAsync"/>).
 /// </summary>
 public sealed class ResilientBatchSystem : IBatchSystem
 {
@@ -34,9 +33,31 @@ public sealed class ResilientBatchSystem : IBatchSystem
     /// <summary>Calls that failed transiently and were tried again (for tests and reports).</summary>
     public int Retries { get; private set; }
 
-    /// <inheritdoc />
-    public Task<string> SubmitAsync(JobRequest request, CancellationToken cancellationToken) =>
-        Run(token => _inner.SubmitAsync(request, token), cancellationToken);
+    /// <summary>
+    /// Submits; after a transient failure it first looks the job up by its name and returns the job found, so a
+    /// submission that reached the batch system but whose answer was lost (a dropped connection, a timeout,
+    /// garbled output) is never made twice.
+    /// </summary>
+    public Task<string> SubmitAsync(JobRequest request, CancellationToken cancellationToken)
+    {
+        var tried = false;
+        return Run(
+            async token =>
+            {
+                if (tried && await _inner.FindAsync(request.Name, token).ConfigureAwait(false) is { } existing)
+                {
+                    Recovered++;
+                    return existing;
+                }
+
+                tried = true;
+                return await _inner.SubmitAsync(request, token).ConfigureAwait(false);
+            },
+            cancellationToken);
+    }
+
+    /// <summary>Submissions whose answer was lost and whose job was then found by name (for tests and reports).</summary>
+    public int Recovered { get; private set; }
 
     /// <inheritdoc />
     public Task<IReadOnlyDictionary<string, JobStatus>> QueryAsync(IReadOnlyCollection<string> jobIds, CancellationToken cancellationToken) =>

@@ -12,7 +12,7 @@ namespace Campaign.Core.Configuration;
 /// from the workspace defaults. Every problem in every row is reported as "file:line:column: ..." and
 /// nothing is returned unless the whole file is valid.
 /// </summary>
-public static class CandidateReader
+public static partial class CandidateReader
 {
     /// <summary>Columns the reader understands; others are kept by callers that want them, and ignored here.</summary>
     public static readonly string[] Columns =
@@ -20,6 +20,15 @@ public static class CandidateReader
         "id", "q", "chi1x", "chi1y", "chi1z", "chi2x", "chi2y", "chi2z", "omega0", "orbits", "levels", "cores",
         "cluster", "value", "must", "core_hours",
     };
+
+    /// <summary>
+    /// What a configuration id may be: it becomes part of run ids, run folder names and batch job names, so it
+    /// must be safe in all of them (no path separators, no leading '-' or '.', nothing a shell would read).
+    /// </summary>
+    public const string IdRule = "an id of 1 to 48 characters: letters, digits, '.', '-' or '_', starting with a letter or digit";
+
+    [System.Text.RegularExpressions.GeneratedRegex("^[A-Za-z0-9][A-Za-z0-9._-]{0,47}$")]
+    private static partial System.Text.RegularExpressions.Regex IdPattern();
 
     /// <summary>Parses and validates the file text.</summary>
     public static IReadOnlyList<Candidate> Read(string text, string source, LengthSettings settings, RunDefaults defaults, string defaultMachine, IReadOnlyCollection<string> knownMachines)
@@ -54,6 +63,10 @@ public static class CandidateReader
             if (string.IsNullOrWhiteSpace(id))
             {
                 cells.Problem("id", id ?? "", "a non-empty identifier");
+            }
+            else if (!IdPattern().IsMatch(id))
+            {
+                cells.Problem("id", id, IdRule);
             }
             else if (!ids.TryAdd(id, row.Line))
             {

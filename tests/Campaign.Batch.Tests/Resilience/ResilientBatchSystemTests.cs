@@ -76,7 +76,7 @@ public class ResilientBatchSystemTests
         var resilient = new ResilientBatchSystem(inner, Options, time);
         var started = time.GetUtcNow();
         Assert.Equal("17", await Drive(time, resilient.SubmitAsync(Request(), CancellationToken.None)));
-        Assert.Equal(3, inner.Calls);
+        Assert.Equal(5, inner.Calls); // three submissions, each retry preceded by a look-up by name that found nothing
         Assert.Equal(2, resilient.Retries);
         Assert.True(time.GetUtcNow() - started >= TimeSpan.FromSeconds(6)); // waited 2 s, then 4 s
     }
@@ -113,5 +113,38 @@ public class ResilientBatchSystemTests
         var error = await Assert.ThrowsAsync<BatchSystemException>(() => Drive(time, task));
         Assert.Equal(BatchErrorKind.Transient, error.Kind);
         Assert.Equal("gave up after 4 tries: Unable to contact slurm controller", error.Message);
+    }
+
+    /// <summary>A batch system that accepts the job and then loses the answer (the connection drops after sbatch ran).</summary>
+    private sealed class LosesTheAnswer : IBatchSystem
+    {
+        private readonly Dictionary<string, string> _byName = new(StringComparer.Ordinal);
+
+        public int Submissions { get; private set; }
+
+        public Task<string> SubmitAsync(JobRequest request, CancellationToken cancellationToken)
+        {
+            Submissions++;
+            _byName[request.Name] = (40 + Submissions).ToString(System.Globalization.CultureInfo.InvariantCulture);
+            return Task.FromException<string>(new BatchSystemException(BatchErrorKind.Transient, "Connection reset by peer"));
+        }
+
+        public Task<IReadOnlyDictionary<string, JobStatus>> QueryAsync(IReadOnlyCollection<string> jobIds, CancellationToken cancellationToken) =>
+            Task.FromResult<IReadOnlyDictionary<string, JobStatus>>(new Dictionary<string, JobStatus>());
+
+        public Task CancelAsync(string jobId, CancellationToken cancellationToken) => Task.CompletedTask;
+
+        public Task<string?> FindAsync(string jobName, CancellationToken cancellationToken) => Task.FromResult(_byName.GetValueOrDefault(jobName));
+    }
+
+    [Fact]
+    public async Task A_submission_whose_answer_was_lost_is_found_by_name_and_never_made_twice()
+    {
+        var time = new FakeTimeProvider();
+        var inner = new LosesTheAnswer();
+        var resilient = new ResilientBatchSystem(inner, Options, time);
+        Assert.Equal("41", await Drive(time, resilient.SubmitAsync(Request(), CancellationToken.None)));
+        Assert.Equal(1, inner.Submissions);
+        Assert.Equal(1, resilient.Recovered);
     }
 }
