@@ -24,7 +24,7 @@ public static class MachineCatalog
             var display = Path.Combine(displayFolder, Path.GetFileName(file));
             try
             {
-                var profile = MachineProfileReader.Read(File.ReadAllText(file), display);
+                var profile = MachineProfileReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(file), display), display);
                 var expected = Path.GetFileNameWithoutExtension(file);
                 if (profile.Name != expected)
                 {

@@ -71,7 +71,7 @@ public sealed class Workspace : IDisposable
         }
 
         var machines = MachineCatalog.Load(PathOf(root, MachinesFolderName), PathOf(root, MachinesFolderName));
-        var config = WorkspaceConfigReader.Read(File.ReadAllText(configPath), configPath, machines.Keys.ToList());
+        var config = WorkspaceConfigReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(configPath), configPath), configPath, machines.Keys.ToList());
         return (config, machines);
     }
 

@@ -20,7 +20,7 @@ internal static class EstimateCommand
         var file = new Argument<string>("FILE") { Description = "Candidate file (CSV; columns in docs/formats.md)" };
         var interval = new Option<double>("--interval") { Description = "Central probability of the intervals (default 0.9)", DefaultValueFactory = _ => 0.9 };
         var format = new Option<string>("--format") { Description = "table (default), md (Markdown for a proposal) or csv", DefaultValueFactory = _ => "table" };
-        format.AcceptOnlyFromAmong("table", "md", "csv");
+        Choices.Restrict(format, "table", "md", "csv");
         var margin = new Option<double>("--checkpoint-margin") { Description = "Hours of each job kept for writing the checkpoint (default 0.5)", DefaultValueFactory = _ => 0.5 };
         var trials = new Option<int>("--ecc-trials") { Description = "Eccentricity-reduction trial runs per configuration (default 0)" };
         var trialLength = new Option<double>("--ecc-length") { Description = "Simulated length of each trial run in M (default 1500)", DefaultValueFactory = _ => 1500 };
@@ -59,7 +59,7 @@ internal static class EstimateCommand
     public static void Write(CommandContext context, Workspace workspace, string path, string shown, EstimateOptions options, string format)
     {
         var config = workspace.Config;
-        var candidates = CandidateReader.Read(File.ReadAllText(path), shown, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
+        var candidates = CandidateReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(path), shown), shown, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
         var latest = CostModelStore.Latest(workspace.Connection);
         var training = TrainingSet.From(RunLogStore.All(workspace.Connection), workspace.Machines, config.Length);
         var storage = StorageModel.Fit(training.Lengths);

@@ -90,7 +90,7 @@ internal static class LengthCommand
             throw new InvalidInputException(new[] { $"{shownName}: no such file: expected a candidate file (CSV)" });
         }
 
-        var candidates = CandidateReader.Read(File.ReadAllText(path), shownName, length, defaults, defaultMachine, machines);
+        var candidates = CandidateReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(path), shownName), shownName, length, defaults, defaultMachine, machines);
         return candidates.Select(c => LengthRow.From(c.Id, c.Spec.Configuration, length)).ToList();
     }
 

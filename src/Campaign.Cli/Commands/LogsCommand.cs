@@ -12,7 +12,7 @@ internal static class LogsCommand
     /// <summary>Reads, validates and stores a run-log file; returns what was done and the runs now stored.</summary>
     public static (ImportResult Result, int Total) Import(Workspace workspace, string path, string shown, bool replace, TimeProvider time)
     {
-        var rows = RunLogReader.Read(File.ReadAllText(path), shown, workspace.Config.Length, workspace.Machines.Keys.ToList());
+        var rows = RunLogReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(path), shown), shown, workspace.Config.Length, workspace.Machines.Keys.ToList());
         var result = RunLogStore.Import(workspace.Connection, rows, shown, replace, time);
         return (result, RunLogStore.All(workspace.Connection).Count);
     }

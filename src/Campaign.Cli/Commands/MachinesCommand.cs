@@ -38,7 +38,7 @@ internal static class MachinesCommand
 
                 try
                 {
-                    profiles.Add(MachineProfileReader.Read(File.ReadAllText(path), file));
+                    profiles.Add(MachineProfileReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(path), file), file));
                 }
                 catch (InvalidInputException e)
                 {

@@ -21,6 +21,12 @@ internal static class ReportCommand
         var command = new Command("report", "Write a self-contained HTML report: burn-down, run progress, coverage map, cost-model check, proposal table") { output, candidates, replicas };
         app.Bind(command, context =>
         {
+            var replicaCount = context.Parse.GetValue(replicas);
+            if (replicaCount is < 10 or > 100_000)
+            {
+                throw new InvalidInputException(new[] { $"--replicas = {replicaCount.ToString(CultureInfo.InvariantCulture)}: expected an integer from 10 to 100000" });
+            }
+
             using var workspace = Workspace.Open(context.Workspace, context.Time);
             var config = workspace.Config;
             var now = context.Time.GetUtcNow();
@@ -35,7 +41,7 @@ internal static class ReportCommand
             {
                 var (runs, _) = ForecastCommand.Runs(workspace);
                 var machines = ForecastCommand.Machines(workspace, now);
-                forecast = CampaignForecaster.Run(runs, machines, model, now, new ForecastOptions { Replicas = Math.Clamp(context.Parse.GetValue(replicas), 10, 100_000), SegmentFailureProbability = ForecastCommand.FailureProbability(logs).Probability });
+                forecast = CampaignForecaster.Run(runs, machines, model, now, new ForecastOptions { Replicas = replicaCount, SegmentFailureProbability = ForecastCommand.FailureProbability(logs).Probability });
             }
 
             var runsById = tracked.ToDictionary(r => r.RunId);
@@ -64,7 +70,7 @@ internal static class ReportCommand
                     throw new InvalidInputException(new[] { $"{file}: no such file: expected a candidate file (CSV)" });
                 }
 
-                candidateList = CandidateReader.Read(File.ReadAllText(path), file, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList()).ToList();
+                candidateList = CandidateReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(path), file), file, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList()).ToList();
             }
 
             static CoveragePoint Point(BinaryConfiguration c) => new(c.Q.Value, c.ChiEffective);

@@ -15,7 +15,7 @@ internal static class SelectCommand
     {
         var file = new Argument<string>("FILE") { Description = "Candidate file (CSV; the same as for estimate)" };
         var objective = new Option<string>("--objective") { Description = "coverage (default): cover the parameter space; value: maximise the sum of the value column", DefaultValueFactory = _ => "coverage" };
-        objective.AcceptOnlyFromAmong("coverage", "value");
+        Choices.Restrict(objective, "coverage", "value");
         var budget = new Option<double?>("--budget") { Description = "One budget in charged core-hours for all machines (default: the allocations in campaign.toml, one per machine)", HelpName = "CORE_HOURS" };
         var quantile = new Option<double>("--quantile") { Description = "Cost quantile charged against the budget (default 0.5; 0.8 or 0.9 for a risk-averse plan)", DefaultValueFactory = _ => 0.5 };
         var exclude = new Option<string[]>("--exclude") { Description = "Candidate ids never to choose (repeat, or separate with commas)", AllowMultipleArgumentsPerToken = true, HelpName = "ID" };
@@ -58,7 +58,7 @@ internal static class SelectCommand
     public static void Run(CommandContext context, Workspace workspace, string path, string shown, SelectOptions options)
     {
         var config = workspace.Config;
-        var candidates = CandidateReader.Read(File.ReadAllText(path), shown, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
+        var candidates = CandidateReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(path), shown), shown, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
         var logs = RunLogStore.All(workspace.Connection);
         var training = TrainingSet.From(logs, workspace.Machines, config.Length);
         var existing = logs.Where(l => l.Outcome == RunOutcome.Completed).Select(l => l.Configuration).Distinct().ToList();

@@ -155,7 +155,13 @@ internal static class TrackingCommands
         app.Bind(command, context =>
         {
             using var workspace = Workspace.Open(context.Workspace, context.Time);
-            WriteStatus(context, workspace, Math.Max(0, context.Parse.GetValue(events)));
+            var count = context.Parse.GetValue(events);
+            if (count < 0)
+            {
+                throw new InvalidInputException(new[] { $"--events = {count.ToString(System.Globalization.CultureInfo.InvariantCulture)}: expected 0 or more" });
+            }
+
+            WriteStatus(context, workspace, count);
             return ExitCodes.Ok;
         });
         return command;

@@ -40,13 +40,18 @@ public static partial class CandidateReader
         {
             if (!table.Has(required))
             {
-                problems.Add($"{source}:1:1: column '{required}' is missing: expected a header with at least id, q and omega0 or orbits");
+                problems.Add($"{source}:{table.HeaderLine.ToString(CultureInfo.InvariantCulture)}:1: column '{required}' is missing: expected a header with at least id, q and omega0 or orbits");
             }
         }
 
         if (!table.Has("omega0") && !table.Has("orbits"))
         {
-            problems.Add($"{source}:1:1: neither 'omega0' nor 'orbits' is a column: expected one of them");
+            problems.Add($"{source}:{table.HeaderLine.ToString(CultureInfo.InvariantCulture)}:1: neither 'omega0' nor 'orbits' is a column: expected one of them");
+        }
+
+        if (table.Rows.Count == 0)
+        {
+            problems.Add($"{source}:{table.HeaderLine.ToString(CultureInfo.InvariantCulture)}:1: no configurations after the header: expected at least one row");
         }
 
         if (problems.Count > 0)

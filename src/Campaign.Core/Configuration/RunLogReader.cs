@@ -25,7 +25,12 @@ public static class RunLogReader
         var missing = Required.Where(c => !table.Has(c)).ToList();
         if (missing.Count > 0)
         {
-            throw new InvalidInputException(missing.Select(c => $"{source}:1:1: column '{c}' is missing: expected the columns {string.Join(", ", Required)}").ToList());
+            throw new InvalidInputException(missing.Select(c => $"{source}:{table.HeaderLine.ToString(CultureInfo.InvariantCulture)}:1: column '{c}' is missing: expected the columns {string.Join(", ", Required)}").ToList());
+        }
+
+        if (table.Rows.Count == 0)
+        {
+            throw new InvalidInputException(new[] { $"{source}:{table.HeaderLine.ToString(CultureInfo.InvariantCulture)}:1: no runs after the header: expected at least one row" });
         }
 
         var problems = new List<string>();
@@ -44,6 +49,14 @@ public static class RunLogReader
             else if (!ids.TryAdd(id, row.Line))
             {
                 cells.Problem("run_id", id, $"a unique run id; it is already used on line {ids[id].ToString(CultureInfo.InvariantCulture)}");
+            }
+
+            foreach (var spin in new[] { "chi1z", "chi2z" })
+            {
+                if (string.IsNullOrWhiteSpace(cells.Text(spin)))
+                {
+                    cells.Problem(spin, "", "a number from -1 to 1 (required in a run log; write 0 for no spin)");
+                }
             }
 
             var draft = cells.Draft(id);

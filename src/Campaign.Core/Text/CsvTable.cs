@@ -15,6 +15,9 @@ public sealed class CsvTable
 {
     private readonly Dictionary<string, int> _columns;
 
+    /// <summary>The 1-based line of the header (comment lines may come before it).</summary>
+    public int HeaderLine { get; private init; } = 1;
+
     private CsvTable(string source, IReadOnlyList<string> header, IReadOnlyList<CsvRow> rows)
     {
         Source = source;
@@ -52,7 +55,7 @@ public sealed class CsvTable
 
         if (text.Contains('\0', StringComparison.Ordinal))
         {
-            throw new InvalidDataException($"{source}:1:1: the file holds NUL bytes: expected UTF-8 text");
+            throw new InvalidDataException($"{source}:{Locate(text, text.IndexOf('\0', StringComparison.Ordinal))}: a NUL byte: expected UTF-8 text");
         }
 
         if (text.Contains('\uFFFD', StringComparison.Ordinal))
@@ -94,7 +97,7 @@ public sealed class CsvTable
             rows.Add(new CsvRow(record.Line, record.Cells));
         }
 
-        return new CsvTable(source, header, rows);
+        return new CsvTable(source, header, rows) { HeaderLine = dataRecords[0].Line };
     }
 
     private static string ColumnNumber(int index) => (index + 1).ToString(CultureInfo.InvariantCulture);
@@ -139,13 +142,13 @@ public sealed class CsvTable
             {
                 quotedCell = true;
                 anyQuoted = true;
-                var startLine = line;
+                var startIndex = i;
                 i++;
                 while (true)
                 {
                     if (i >= text.Length)
                     {
-                        throw new InvalidDataException($"{source}:{startLine}: a quoted cell is not closed: expected a closing '\"'");
+                        throw new InvalidDataException($"{source}:{Locate(text, startIndex)}: a quoted cell is not closed: expected a closing '\"'");
                     }
 
                     if (text[i] == '"')

@@ -21,7 +21,7 @@ public class CsvTableTests
     [InlineData("", "f.csv:1:1: the file is empty: expected a header line of column names")]
     [InlineData("a,b\n1,2,3\n", "f.csv:2:1: 3 cells: expected 2, one per header column (a, b)")]
     [InlineData("a,a\n", "f.csv:1:2: column 'a' appears twice in the header: expected each column once")]
-    [InlineData("a,b\n\"1,2\n", "f.csv:2: a quoted cell is not closed: expected a closing '\"'")]
+    [InlineData("a,b\n\"1,2\n", "f.csv:2:1: a quoted cell is not closed: expected a closing '\"'")]
     [InlineData("a,b\n1,x\"y\n", "f.csv:2: a quote inside an unquoted cell: expected the whole cell in quotes, with quotes doubled")]
     [InlineData("a\n\uFFFD\n", "f.csv:2:1: bytes that are not valid UTF-8: expected UTF-8 text")]
     public void Malformed_files_are_located(string text, string message)
