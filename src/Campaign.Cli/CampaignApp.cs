@@ -102,7 +102,15 @@ public sealed class CampaignApp
             {
                 return Fail(context, ExitCodes.BadInput, "bad_input", e.Problems);
             }
-            catch (Exception e) when (e is SchemaTooNewException or IOException or UnauthorizedAccessException or SqliteException or InvalidOperationException)
+            catch (SqliteException e)
+            {
+                return Fail(context, ExitCodes.RuntimeFailure, "runtime_failure", new[] { StorageProblem.Explain(e, dir) });
+            }
+            catch (IOException e) when (StorageProblem.IsDiskFull(e))
+            {
+                return Fail(context, ExitCodes.RuntimeFailure, "runtime_failure", new[] { StorageProblem.Explain(e, dir) });
+            }
+            catch (Exception e) when (e is SchemaTooNewException or IOException or UnauthorizedAccessException or InvalidOperationException)
             {
                 return Fail(context, ExitCodes.RuntimeFailure, "runtime_failure", new[] { e.Message });
             }

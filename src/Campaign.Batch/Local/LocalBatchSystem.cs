@@ -175,8 +175,10 @@ public sealed class LocalBatchSystem : IBatchSystem
             return new JobStatus(id, JobState.Running, "running (supervisor gone)", ChargedCores: job.Cores, Name: job.Name);
         }
 
-        // Both processes are gone and no exit record was written: the host must look at it, not assume success.
-        return new JobStatus(id, JobState.Unknown, "ended without an exit record", ChargedCores: job.Cores, Name: job.Name);
+        // Both processes are gone and no exit record was written (the machine rebooted, or the supervisor was
+        // killed): the runner has lost the job's outcome. Reported as missing, never as a success: the host carries
+        // on from the run's newest valid checkpoint.
+        return new JobStatus(id, JobState.Missing, "ended without an exit record", ChargedCores: job.Cores, Name: job.Name);
     }
 
     /// <summary>Starts queued jobs, oldest first, while their cores fit and their dependency has ended.</summary>

@@ -78,7 +78,15 @@ internal sealed class LocalJobFiles
     public static void WriteAtomically(string path, string text)
     {
         var temporary = path + ".tmp-" + Guid.NewGuid().ToString("N");
-        File.WriteAllText(temporary, text);
-        File.Move(temporary, path, overwrite: true);
+        try
+        {
+            File.WriteAllText(temporary, text);
+            File.Move(temporary, path, overwrite: true);
+        }
+        catch (IOException)
+        {
+            File.Delete(temporary); // no half-written leftovers (e.g. when the disk is full)
+            throw;
+        }
     }
 }

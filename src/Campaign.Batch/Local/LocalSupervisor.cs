@@ -112,8 +112,20 @@ public static class LocalSupervisor
         var code = process.ExitCode;
         int? signal = code > 128 ? code - 128 : 0;
         var state = ending ?? (code == 0 ? "completed" : "failed");
-        files.WriteExit(new LocalExitRecord(state, code, signal, watch.Elapsed.TotalSeconds, Now()));
-        return 0;
+        var record = new LocalExitRecord(state, code, signal, watch.Elapsed.TotalSeconds, Now());
+        // The outcome must not be lost to a full or failing disk: keep trying (the job counts as running meanwhile).
+        for (var wait = 1; ; wait = Math.Min(wait * 2, 60))
+        {
+            try
+            {
+                files.WriteExit(record);
+                return 0;
+            }
+            catch (IOException)
+            {
+                Thread.Sleep(TimeSpan.FromSeconds(wait));
+            }
+        }
     }
 
     private static string Now() => DateTimeOffset.UtcNow.ToString("O", CultureInfo.InvariantCulture);

@@ -1,6 +1,8 @@
 using System.Diagnostics;
 using System.Globalization;
 using System.Runtime.InteropServices;
+using System.Security.Cryptography;
+using System.Text;
 using System.Text.Json;
 using Campaign.Core.Domain;
 using Campaign.Core.Physics;
@@ -136,8 +138,11 @@ internal static class DemoPayload
     {
         var path = Path.Combine(checkpoints, "ckpt-" + state.Steps.ToString("D9", CultureInfo.InvariantCulture) + ".json");
         var temporary = path + ".partial";
-        File.WriteAllText(temporary, JsonSerializer.Serialize(state, Json));
+        var bytes = Encoding.UTF8.GetBytes(JsonSerializer.Serialize(state, Json));
+        File.WriteAllBytes(temporary, bytes);
         File.Move(temporary, path, overwrite: true);
+        // A checksum in sha256sum's format, then the completion marker (for checkpoint_checksum and checkpoint_marker).
+        File.WriteAllText(path + ".sha256", Convert.ToHexStringLower(SHA256.HashData(bytes)) + "  " + Path.GetFileName(path) + "\n");
         File.WriteAllText(path + ".ok", "");
     }
 

@@ -118,7 +118,7 @@ public sealed class LocalRunnerTests : IDisposable
         File.WriteAllText(Path.Combine(folder, "supervisor.pid"), "1 999999999");
         File.WriteAllText(Path.Combine(folder, "script.pid"), "1 999999999");
         var status = (await runner.QueryAsync(new[] { id }, CancellationToken.None))[id];
-        Assert.Equal(JobState.Unknown, status.State);
+        Assert.Equal(JobState.Missing, status.State);
         Assert.Equal("ended without an exit record", status.NativeState);
     }
 
