@@ -13,6 +13,7 @@ public sealed class SlurmTrackingTests : IDisposable
     [SlurmFact]
     public void A_short_campaign_runs_through_two_segments_joined_by_an_afterany_dependency()
     {
+        using var cluster = SlurmCluster.Use();
         Environment.SetEnvironmentVariable("SLURM_CONF", SlurmCluster.ConfigFile);
         File.SetUnixFileMode(_folder.Path, (UnixFileMode)Convert.ToInt32("755", 8));
         Assert.Equal(0, CliRun.Demo(_folder.Path, "ws").ExitCode);

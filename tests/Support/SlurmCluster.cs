@@ -43,6 +43,28 @@ public static class SlurmCluster
         }
     }
 
+    /// <summary>
+    /// Holds the cluster for one test: shared by ordinary tests (in any test process), exclusive for a test that
+    /// restarts the controller or takes the node down. Waits (up to 10 minutes) for a conflicting holder.
+    /// </summary>
+    public static IDisposable Use(bool exclusive = false)
+    {
+        var path = Path.Combine(Path.GetDirectoryName(ConfigFile)!, "tests.lock");
+        var deadline = DateTime.UtcNow + TimeSpan.FromMinutes(10);
+        while (true)
+        {
+            try
+            {
+                // On Linux .NET takes flock(LOCK_EX) for FileShare.None and flock(LOCK_SH) otherwise, across processes.
+                return new FileStream(path, FileMode.OpenOrCreate, FileAccess.ReadWrite, exclusive ? FileShare.None : FileShare.ReadWrite);
+            }
+            catch (IOException) when (DateTime.UtcNow < deadline)
+            {
+                Thread.Sleep(500);
+            }
+        }
+    }
+
     private static (string?, string?) Start()
     {
         if (Environment.GetEnvironmentVariable("SLURM_CONF") is { Length: > 0 } existing && Works(existing))

@@ -109,7 +109,7 @@ public sealed record FittedCostModel
 
         var leverage = Leverage(x);
         var se = ResidualSd * Math.Sqrt(1 + leverage);
-        var t = PredictionInterval.StudentTQuantile((1 + level) / 2, DegreesOfFreedom);
+        var t = Quantiles.GetOrAdd((level, DegreesOfFreedom), k => PredictionInterval.StudentTQuantile((1 + k.Level) / 2, k.Dof));
         var logMedian = center - o.LogSpeed;
         var reasons = new List<string>();
         for (var j = 0; j < x.Length; j++)
@@ -137,6 +137,9 @@ public sealed record FittedCostModel
 
         return new CostPrediction(logMedian, se, Math.Exp(logMedian), Math.Exp(logMedian) * Smearing, Math.Exp(logMedian - t * se), Math.Exp(logMedian + t * se), leverage, reasons);
     }
+
+    /// <summary>Student t quantiles already computed, by interval level (the inverse CDF is slow; estimates repeat it per row).</summary>
+    private static readonly System.Collections.Concurrent.ConcurrentDictionary<(double Level, double Dof), double> Quantiles = new();
 
     /// <summary>x'(X'WX + P)^-1 x.</summary>
     public double Leverage(IReadOnlyList<double> x)

@@ -32,10 +32,13 @@ public static class ProposalEstimator
             });
         }
 
-        var rows = new List<EstimateRow>();
-        var draws = new List<DrawSpec>();
-        foreach (var candidate in candidates)
+        // Candidates are independent: estimated in parallel, gathered in their order.
+        var perCandidate = new (List<EstimateRow> Rows, List<DrawSpec> Draws)[candidates.Count];
+        Parallel.For(0, candidates.Count, index =>
         {
+            var candidate = candidates[index];
+            var rows = new List<EstimateRow>();
+            var draws = new List<DrawSpec>();
             var machine = machines[candidate.Machine];
             var config = candidate.Spec.Configuration;
             var length = SimulatedLength.Estimate(config, lengthSettings).Total;
@@ -73,7 +76,10 @@ public static class ProposalEstimator
                     draws.Add(new DrawSpec(x, -Math.Log(machine.RelativeSpeed), machine, candidate.Spec.Cores));
                 }
             }
-        }
+            perCandidate[index] = (rows, draws);
+        });
+        var rows = perCandidate.SelectMany(p => p.Rows).ToList();
+        var draws = perCandidate.SelectMany(p => p.Draws).ToList();
 
         var (total, byMachine) = Totals(draws, model, options);
         return new ProposalEstimate(rows, total, byMachine, options.Interval, options.Samples, options.Seed);
@@ -138,67 +144,177 @@ public static class ProposalEstimator
     /// <summary>One simulation in the Monte Carlo: its feature row (null for a fixed given cost), offset and machine.</summary>
     private sealed record DrawSpec(double[]? X, double Offset, MachineProfile Machine, int Cores);
 
+    /// <summary>Rows of one machine above which the residual part of its sum is drawn from its exact moments (see docs/cost-model.md).</summary>
+    public const int CentralLimitRows = 500;
+
+    private sealed class MachineDraws
+    {
+        public required string Name { get; init; }
+
+        public double FixedConsumed { get; set; }
+
+        public double FixedCharged { get; set; }
+
+        public List<(double[] X, double Offset, double Ratio)> Modelled { get; } = new();
+    }
+
     private static (EstimateTotal Total, IReadOnlyDictionary<string, EstimateTotal> ByMachine) Totals(IReadOnlyList<DrawSpec> draws, FittedCostModel? model, EstimateOptions options)
     {
-        var random = new Random(options.Seed);
         var samples = options.Samples;
-        var machineNames = draws.Select(d => d.Machine.Name).Distinct().Order(StringComparer.Ordinal).ToList();
-        var consumed = new double[samples];
-        var charged = new double[samples];
-        var perMachine = machineNames.ToDictionary(m => m, _ => (Consumed: new double[samples], Charged: new double[samples]));
-        Matrix<double>? cholesky = null;
-        Vector<double>? beta = null;
-        if (model is not null)
+        var groups = draws.GroupBy(d => d.Machine.Name).OrderBy(g => g.Key, StringComparer.Ordinal).Select(g =>
         {
-            var p = model.Coefficients.Length;
-            var covariance = Matrix<double>.Build.Dense(p, p, (i, j) => model.UnscaledCovariance[i][j] * model.ResidualSd * model.ResidualSd);
-            cholesky = covariance.Cholesky().Factor;
-            beta = Vector<double>.Build.DenseOfArray(model.Coefficients);
-        }
-
-        var chargeRatio = draws.Select(ChargeRatio).ToArray();
-        var z = new double[beta?.Count ?? 0];
-        for (var s = 0; s < samples; s++)
-        {
-            Vector<double>? b = null;
-            if (beta is not null)
+            var machine = new MachineDraws { Name = g.Key };
+            foreach (var d in g)
             {
-                for (var j = 0; j < z.Length; j++)
-                {
-                    z[j] = Normal.Sample(random, 0, 1);
-                }
-
-                b = beta + cholesky! * Vector<double>.Build.DenseOfArray(z);
-            }
-
-            for (var i = 0; i < draws.Count; i++)
-            {
-                var d = draws[i];
-                double cost;
+                var ratio = ChargeRatio(d);
                 if (d.X is null)
                 {
-                    cost = Math.Exp(d.Offset);
+                    machine.FixedConsumed += Math.Exp(d.Offset);
+                    machine.FixedCharged += Math.Exp(d.Offset) * ratio;
                 }
                 else
                 {
-                    var y = d.Offset;
-                    for (var j = 0; j < d.X.Length; j++)
-                    {
-                        y += d.X[j] * b![j];
-                    }
-
-                    cost = Math.Exp(y + Normal.Sample(random, 0, model!.ResidualSd));
+                    machine.Modelled.Add((d.X, d.Offset, ratio));
                 }
-
-                consumed[s] += cost;
-                charged[s] += cost * chargeRatio[i];
-                var bucket = perMachine[d.Machine.Name];
-                bucket.Consumed[s] += cost;
-                bucket.Charged[s] += cost * chargeRatio[i];
             }
+
+            return machine;
+        }).ToList();
+
+        Matrix<double>? cholesky = null;
+        var p = model?.Coefficients.Length ?? 0;
+        if (model is not null)
+        {
+            var covariance = Matrix<double>.Build.Dense(p, p, (i, j) => model.UnscaledCovariance[i][j] * model.ResidualSd * model.ResidualSd);
+            cholesky = covariance.Cholesky().Factor;
         }
 
-        return (Summary(consumed, charged, options.Interval), perMachine.ToDictionary(kv => kv.Key, kv => Summary(kv.Value.Consumed, kv.Value.Charged, options.Interval)));
+        // Column-major features per machine, so that each sample's linear predictors are a few passes over arrays.
+        var columns = groups.Select(g => Enumerable.Range(0, p).Select(k => g.Modelled.Select(m => m.X[k]).ToArray()).ToArray()).ToList();
+        var offsets = groups.Select(g => g.Modelled.Select(m => m.Offset).ToArray()).ToList();
+        var ratios = groups.Select(g => g.Modelled.Select(m => m.Ratio).ToArray()).ToList();
+        var sd = model?.ResidualSd ?? 0;
+        var mean1 = Math.Exp(sd * sd / 2); // E exp(e), e ~ N(0, sd^2)
+        var variance1 = Math.Exp(sd * sd) * (Math.Exp(sd * sd) - 1); // Var exp(e)
+        var consumed = new double[samples];
+        var charged = new double[samples];
+        var perMachine = groups.Select(_ => (Consumed: new double[samples], Charged: new double[samples])).ToArray();
+
+        // Each sample has its own generator seeded from the seed and its index: the result does not depend on
+        // how many threads run the samples.
+        Parallel.For(0, samples, s =>
+        {
+            var random = new Random(unchecked((options.Seed * 1_000_003) + s));
+            var b = new double[p];
+            if (model is not null)
+            {
+                var z = Vector<double>.Build.Dense(p, _ => Normal.Sample(random, 0, 1));
+                var shift = cholesky! * z;
+                for (var k = 0; k < p; k++)
+                {
+                    b[k] = model.Coefficients[k] + shift[k];
+                }
+            }
+
+            for (var g = 0; g < groups.Count; g++)
+            {
+                var n = offsets[g].Length;
+                var mu = (double[])offsets[g].Clone();
+                var width = System.Numerics.Vector<double>.Count;
+                for (var k = 0; k < p; k++)
+                {
+                    var column = columns[g][k];
+                    var bk = b[k];
+                    var vb = new System.Numerics.Vector<double>(bk);
+                    var i = 0;
+                    for (; i <= n - width; i += width)
+                    {
+                        (new System.Numerics.Vector<double>(mu, i) + (new System.Numerics.Vector<double>(column, i) * vb)).CopyTo(mu, i);
+                    }
+
+                    for (; i < n; i++)
+                    {
+                        mu[i] += column[i] * bk;
+                    }
+                }
+
+                double c, h;
+                if (n >= CentralLimitRows)
+                {
+                    // Given the coefficients, the sum of n independent log-normal residual factors: exact mean and
+                    // (co)variance, drawn as a bivariate normal (the central limit theorem, n >= 500).
+                    var ratio = ratios[g];
+                    var va = System.Numerics.Vector<double>.Zero;
+                    var var_ = System.Numerics.Vector<double>.Zero;
+                    var vbb = System.Numerics.Vector<double>.Zero;
+                    var vbr = System.Numerics.Vector<double>.Zero;
+                    var vbrr = System.Numerics.Vector<double>.Zero;
+                    var i = 0;
+                    for (; i <= n - width; i += width)
+                    {
+                        var m = System.Numerics.Vector.Exp(new System.Numerics.Vector<double>(mu, i));
+                        var r = new System.Numerics.Vector<double>(ratio, i);
+                        var mm = m * m;
+                        va += m;
+                        var_ += m * r;
+                        vbb += mm;
+                        vbr += mm * r;
+                        vbrr += mm * r * r;
+                    }
+
+                    double a = System.Numerics.Vector.Sum(va), ar = System.Numerics.Vector.Sum(var_), bb = System.Numerics.Vector.Sum(vbb), br = System.Numerics.Vector.Sum(vbr), brr = System.Numerics.Vector.Sum(vbrr);
+                    for (; i < n; i++)
+                    {
+                        var m = Math.Exp(mu[i]);
+                        var r = ratio[i];
+                        a += m;
+                        ar += m * r;
+                        bb += m * m;
+                        br += m * m * r;
+                        brr += m * m * r * r;
+                    }
+
+                    var varC = variance1 * bb;
+                    var varH = variance1 * brr;
+                    var cov = variance1 * br;
+                    var z1 = Normal.Sample(random, 0, 1);
+                    var z2 = Normal.Sample(random, 0, 1);
+                    var sc = Math.Sqrt(varC);
+                    var rho = sc > 0 && varH > 0 ? Math.Clamp(cov / (sc * Math.Sqrt(varH)), -1, 1) : 0;
+                    c = mean1 * a + sc * z1;
+                    h = mean1 * ar + Math.Sqrt(varH) * (rho * z1 + Math.Sqrt(1 - rho * rho) * z2);
+                }
+                else
+                {
+                    c = 0;
+                    h = 0;
+                    for (var i = 0; i < n; i++)
+                    {
+                        var cost = Math.Exp(mu[i] + Normal.Sample(random, 0, sd));
+                        c += cost;
+                        h += cost * ratios[g][i];
+                    }
+                }
+
+                c += groups[g].FixedConsumed;
+                h += groups[g].FixedCharged;
+                perMachine[g].Consumed[s] = c;
+                perMachine[g].Charged[s] = h;
+            }
+
+            var totalConsumed = 0.0;
+            var totalCharged = 0.0;
+            for (var g = 0; g < groups.Count; g++)
+            {
+                totalConsumed += perMachine[g].Consumed[s];
+                totalCharged += perMachine[g].Charged[s];
+            }
+
+            consumed[s] = totalConsumed;
+            charged[s] = totalCharged;
+        });
+
+        return (Summary(consumed, charged, options.Interval), groups.Select((g, k) => (g.Name, k)).ToDictionary(x => x.Name, x => Summary(perMachine[x.k].Consumed, perMachine[x.k].Charged, options.Interval)));
     }
 
     /// <summary>Charged core-hours per consumed core-hour on the draw's machine (whole-node rounding and charge factor).</summary>

@@ -33,6 +33,69 @@ public static class Selector
         return SolveCoverage(problem, musts, capacity, progress);
     }
 
+    /// <summary>
+    /// The greedy phase alone (from the must runs, no enumeration or swaps): lazy, as <see cref="Solve"/> runs it,
+    /// or plain, recomputing every candidate's gain every round. Both pick by gain per share of budget and must
+    /// agree; the benchmarks compare their speed.
+    /// </summary>
+    internal static (List<Assignment> Chosen, double Value) GreedyPhase(SelectionProblem problem, bool lazy)
+    {
+        var candidates = problem.Candidates;
+        var capacity = problem.Pools.Select(p => p.Capacity).ToArray();
+        var musts = PlaceMusts(problem, capacity);
+        var f = new CoverageFunction(candidates.Select(c => c.Coordinates).ToList(), candidates.Select(c => c.Value).ToList(), problem.Existing);
+        var chosen = new bool[candidates.Count];
+        foreach (var m in musts)
+        {
+            f.Add(candidates[m.Candidate].Coordinates);
+            chosen[m.Candidate] = true;
+        }
+
+        var slots = problem.MaxRuns is { } cap ? cap - musts.Count : int.MaxValue;
+        var reaches = ReachTable(f, candidates);
+        if (lazy)
+        {
+            return (Greedy(problem, f, chosen, capacity, slots, null, reaches), f.Value);
+        }
+
+        var picked = new List<Assignment>();
+        while (picked.Count < slots)
+        {
+            var free = FreeOptions(problem, chosen, capacity).ToList();
+            if (free.Count == 0)
+            {
+                break;
+            }
+
+            var gains = new double[free.Count];
+            Parallel.For(0, free.Count, k => gains[k] = GainOf(f, candidates, reaches, free[k].Candidate));
+            var best = -1;
+            var bestKey = double.NegativeInfinity;
+            for (var k = 0; k < free.Count; k++)
+            {
+                var option = candidates[free[k].Candidate].Options[free[k].Option];
+                var key = gains[k] / Math.Max(option.Cost / problem.Pools[option.Pool].Capacity, 1e-300);
+                if (key > bestKey)
+                {
+                    (best, bestKey) = (k, key);
+                }
+            }
+
+            if (best < 0 || gains[best] <= 0)
+            {
+                break;
+            }
+
+            var (j, o) = free[best];
+            chosen[j] = true;
+            capacity[candidates[j].Options[o].Pool] -= candidates[j].Options[o].Cost;
+            f.Add(candidates[j].Coordinates);
+            picked.Add(new Assignment(j, o));
+        }
+
+        return (picked, f.Value);
+    }
+
     private static List<Assignment> PlaceMusts(SelectionProblem problem, double[] capacity)
     {
         var musts = new List<Assignment>();

@@ -20,6 +20,7 @@ public sealed class SlurmClusterTests : IDisposable
     [SlurmFact]
     public async Task A_segment_that_completes_reports_exit_0_and_its_environment_reaches_the_script()
     {
+        using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var script = _jobs.Script("ok", "echo \"restart=$CAMPAIGN_RESTART\"; exit 0");
         var id = await slurm.SubmitAsync(_jobs.Request("ok", script, environment: new Dictionary<string, string> { ["CAMPAIGN_RESTART"] = "/ck/dir with space" }), CancellationToken.None);
@@ -35,6 +36,7 @@ public sealed class SlurmClusterTests : IDisposable
     [SlurmFact]
     public async Task A_job_is_found_by_its_name_and_an_unknown_name_is_not()
     {
+        using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var id = await slurm.SubmitAsync(_jobs.Request("findme", _jobs.Script("findme", "exit 0")), CancellationToken.None);
         Assert.Equal(id, await slurm.FindAsync(JobName.For("findme", 1), CancellationToken.None));
@@ -44,6 +46,7 @@ public sealed class SlurmClusterTests : IDisposable
     [SlurmFact]
     public async Task A_segment_that_fails_reports_its_exit_code()
     {
+        using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var id = await slurm.SubmitAsync(_jobs.Request("fail", _jobs.Script("fail", "exit 3")), CancellationToken.None);
         var status = (await Jobs.WaitFinal(slurm, new[] { id }, TimeSpan.FromSeconds(60)))[id];
@@ -54,6 +57,7 @@ public sealed class SlurmClusterTests : IDisposable
     [SlurmFact]
     public async Task A_cancelled_segment_is_reported_cancelled_and_cancelling_again_is_harmless()
     {
+        using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var id = await slurm.SubmitAsync(_jobs.Request("cancel", _jobs.Script("cancel", "sleep 300")), CancellationToken.None);
         await Jobs.WaitFinal(slurm, new[] { id }, TimeSpan.FromSeconds(30), s => s.State == JobState.Running);
@@ -66,6 +70,7 @@ public sealed class SlurmClusterTests : IDisposable
     [SlurmFact]
     public async Task An_afterany_chain_starts_the_next_segment_only_after_the_first_ends_in_any_state()
     {
+        using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var first = await slurm.SubmitAsync(_jobs.Request("first", _jobs.Script("first", "sleep 3; date +%s%N > first.end; exit 1")), CancellationToken.None);
         var second = await slurm.SubmitAsync(_jobs.Request("second", _jobs.Script("second", "date +%s%N > second.start"), afterAny: first), CancellationToken.None);
@@ -82,6 +87,7 @@ public sealed class SlurmClusterTests : IDisposable
     [SlurmFact]
     public async Task Many_jobs_are_queried_with_one_command_and_unknown_ids_come_back_missing()
     {
+        using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var script = _jobs.Script("many", "sleep 20");
         var ids = new List<string>();
@@ -123,6 +129,7 @@ public sealed class SlurmSlowTests : IDisposable
     [SlurmFact]
     public async Task A_segment_catches_the_warning_writes_a_checkpoint_and_times_out_and_a_purged_job_is_still_found()
     {
+        using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var script = _jobs.Script("limit", "trap 'echo checkpoint > checkpoint.txt' USR1\nwhile true; do sleep 1; done");
         var id = await slurm.SubmitAsync(_jobs.Request("limit", script, minutes: 1, warning: new WarningSignal("USR1", 30)), CancellationToken.None);

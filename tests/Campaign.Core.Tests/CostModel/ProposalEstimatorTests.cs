@@ -86,6 +86,30 @@ public class ProposalEstimatorTests
     }
 
     [Fact]
+    public void Large_totals_drawn_through_the_central_limit_keep_the_log_normal_mean_and_agree_with_row_by_row_draws()
+    {
+        // Mean of a log-normal (textbook): E exp(Y) = exp(mu + sigma^2 / 2). For row r with ln cost x_r'b* + e_r,
+        // b* ~ N(b, S) and e_r ~ N(0, s^2): E cost_r = exp(x_r'b + x_r'S x_r / 2 + s^2 / 2), summed over the rows.
+        var model = Model();
+        var random = new Random(11);
+        var config = new BinaryConfiguration(MassRatio.From(2), Spin.Aligned(0.3), Spin.Zero, 0.018);
+        Candidate Many(int i) => new("c" + i, new RunSpec("c" + i, new BinaryConfiguration(MassRatio.From(1 + 4 * random.NextDouble()), Spin.Aligned(0.5 * random.NextDouble()), Spin.Zero, 0.016 + 0.003 * random.NextDouble()), new[] { 1 + random.Next(3) }, 128), "whole", 1, false, null);
+        var large = Enumerable.Range(0, ProposalEstimator.CentralLimitRows + 100).Select(Many).ToList();
+        var estimate = ProposalEstimator.Estimate(large, Machines, model, StorageModel.RuleOfThumb, new LengthSettings(), new EstimateOptions { Samples = 20000 });
+        var expected = estimate.Runs.Sum(r => r.Mean);
+        Assert.Equal(expected, estimate.Total.Mean, expected * 0.01);
+
+        // The same rows split over two machines of equal policy below the threshold are drawn row by row: the same total.
+        var half = large.Select((c, i) => i % 2 == 0 ? c : c with { Machine = "whole2" }).ToList();
+        var machines = new Dictionary<string, MachineProfile>(Machines) { ["whole2"] = Whole with { Name = "whole2" } };
+        _ = config;
+        var rowByRow = ProposalEstimator.Estimate(half.Take(2 * (ProposalEstimator.CentralLimitRows - 1)).ToList(), machines, model, StorageModel.RuleOfThumb, new LengthSettings(), new EstimateOptions { Samples = 20000 });
+        var clt = ProposalEstimator.Estimate(large.Take(2 * (ProposalEstimator.CentralLimitRows - 1)).ToList(), Machines, model, StorageModel.RuleOfThumb, new LengthSettings(), new EstimateOptions { Samples = 20000 });
+        Assert.Equal(rowByRow.Total.Median, clt.Total.Median, clt.Total.Median * 0.01);
+        Assert.Equal(Math.Log(rowByRow.Total.High / rowByRow.Total.Low), Math.Log(clt.Total.High / clt.Total.Low), 0.02);
+    }
+
+    [Fact]
     public void Bad_options_are_reported_together()
     {
         var options = new EstimateOptions { Interval = 1.2, CheckpointMarginHours = 30, Samples = 10 };

@@ -1,0 +1,152 @@
+using System.Diagnostics;
+using Campaign.Cli.Tests.Support;
+using Xunit.Abstractions;
+
+namespace Campaign.Cli.Tests.Reliability;
+
+/// <summary>
+/// The tracking cycle against the real one-node Slurm while the cluster misbehaves: the controller is stopped
+/// and started again in the middle of a segment, and the node goes down under a running segment. Holds the
+/// cluster exclusively (other Slurm tests wait).
+/// </summary>
+[Collection("slurm-tracking")]
+public sealed class SlurmFaultTests(ITestOutputHelper output) : IDisposable
+{
+    private readonly TempFolder _folder = new();
+
+    public void Dispose()
+    {
+        // Leave the shared cluster as other tests expect it: the node up, none of our jobs left.
+        if (SlurmCluster.SkipReason is null && _node is not null)
+        {
+            Run("scontrol", "update", $"NodeName={_node}", "State=RESUME");
+            Run("scancel", "--name", Campaign.Batch.JobName.For("sm-q1-a00.L1", 1));
+        }
+
+        _folder.Dispose();
+    }
+
+    private string? _node;
+
+    private static (int Code, string Text) Run(string file, params string[] args)
+    {
+        var start = new ProcessStartInfo(file) { RedirectStandardError = true, RedirectStandardOutput = true, UseShellExecute = false };
+        start.Environment["SLURM_CONF"] = SlurmCluster.ConfigFile;
+        foreach (var a in args)
+        {
+            start.ArgumentList.Add(a);
+        }
+
+        using var process = Process.Start(start)!;
+        var text = process.StandardOutput.ReadToEnd() + process.StandardError.ReadToEnd();
+        process.WaitForExit();
+        return (process.ExitCode, text.Trim());
+    }
+
+    private System.Text.Json.JsonElement Tick()
+    {
+        var tick = CliRun.Live(_folder.Path, "--dir", "ws", "tick", "--json");
+        Assert.True(tick.ExitCode == 0, "a cycle failed: " + tick.Err + tick.Out);
+        var json = tick.Json();
+        foreach (var message in json.GetProperty("messages").EnumerateArray())
+        {
+            output.WriteLine($"{DateTime.UtcNow:HH:mm:ss} {message.GetString()}");
+        }
+
+        return json;
+    }
+
+    private System.Text.Json.JsonElement Run1() =>
+        CliRun.Live(_folder.Path, "--dir", "ws", "status", "--json").Json().GetProperty("runs").EnumerateArray().Single(r => r.GetProperty("id").GetString() == "sm-q1-a00.L1");
+
+    private void TickUntil(Func<System.Text.Json.JsonElement, bool> done, TimeSpan limit, string what)
+    {
+        var deadline = DateTime.UtcNow + limit;
+        while (DateTime.UtcNow < deadline)
+        {
+            Tick();
+            if (done(Run1()))
+            {
+                return;
+            }
+
+            Thread.Sleep(1500);
+        }
+
+        Assert.Fail($"timed out waiting for {what}: {Run1()}");
+    }
+
+    [SlurmFact]
+    public async Task The_cycle_rides_out_a_controller_restart_and_a_drained_node_and_the_run_finishes()
+    {
+        using var cluster = SlurmCluster.Use(exclusive: true);
+        Environment.SetEnvironmentVariable("SLURM_CONF", SlurmCluster.ConfigFile);
+        var state = Path.GetDirectoryName(SlurmCluster.ConfigFile)!;
+        File.SetUnixFileMode(_folder.Path, (UnixFileMode)Convert.ToInt32("755", 8));
+        Assert.Equal(0, CliRun.Demo(_folder.Path, "ws").ExitCode);
+        var ws = Path.Combine(_folder.Path, "ws");
+        File.WriteAllText(Path.Combine(ws, "machines", "minislurm.toml"),
+            "name = \"minislurm\"\nbatch_system = \"slurm\"\ncores_per_node = 8\nmemory_per_node_gb = 2\nwall_limit_hours = 1\ncharge_whole_nodes = false\n");
+        var config = File.ReadAllText(Path.Combine(ws, "campaign.toml"))
+            .Replace("machines = [\"halyard\", \"gunwale\", \"workbench\"]", "machines = [\"halyard\", \"gunwale\", \"workbench\", \"minislurm\"]", StringComparison.Ordinal)
+            .Replace("segment_minutes = 0.05", "segment_minutes = 1", StringComparison.Ordinal)
+            .Replace("warning_seconds = 1", "warning_seconds = 30", StringComparison.Ordinal)
+            .Replace("stall_minutes = 0.5", "stall_minutes = 5", StringComparison.Ordinal);
+        File.WriteAllText(Path.Combine(ws, "campaign.toml"), config);
+        Assert.Equal(0, CliRun.Live(_folder.Path, "--dir", "ws", "track", "--on", "minislurm", "--cores", "1", "--only", "sm-q1-a00", "--rehearsal").ExitCode);
+        foreach (var level in new[] { 2, 3 })
+        {
+            Assert.Equal(0, CliRun.Live(_folder.Path, "--dir", "ws", "abandon", $"sm-q1-a00.L{level}").ExitCode);
+        }
+
+        File.WriteAllText(Path.Combine(ws, "runs", "sm-q1-a00.L1", "payload.json"), "{\"steps_per_second\": 60, \"checkpoint_every\": 100}");
+        TickUntil(r => r.GetProperty("state").GetString() == "running", TimeSpan.FromSeconds(60), "the first segment to run");
+
+        // 1. The controller stops (as for an upgrade or a crash) and comes back a few seconds later with its saved
+        // state, while a cycle is querying it: the cycle's retries ride it out.
+        var pid = int.Parse(File.ReadAllText(Path.Combine(state, "run", "slurmctld.pid")).Trim(), System.Globalization.CultureInfo.InvariantCulture);
+        Process.GetProcessById(pid).Kill();
+        Thread.Sleep(500);
+        var during = Task.Run(() => CliRun.Live(_folder.Path, "--dir", "ws", "tick", "--json"));
+        Thread.Sleep(4000);
+        // The controller daemonizes: it must not inherit our pipes (reading them would wait for it to exit).
+        var controller = new ProcessStartInfo("slurmctld") { UseShellExecute = false, RedirectStandardOutput = false, RedirectStandardError = false };
+        foreach (var a in new[] { "-f", SlurmCluster.ConfigFile, "-i" })
+        {
+            controller.ArgumentList.Add(a);
+        }
+
+        using (var started = Process.Start(controller)!)
+        {
+            started.WaitForExit();
+            Assert.Equal(0, started.ExitCode);
+        }
+
+        var outage = await during;
+        output.WriteLine($"cycle during the outage: exit {outage.ExitCode} {outage.Err} {outage.Out}");
+        Assert.Equal(0, outage.ExitCode);
+        // Still the same segment, still active (running, or back in the queue if the controller requeued it).
+        Assert.Contains(Run1().GetProperty("state").GetString(), new[] { "running", "queued" });
+        Assert.Equal(1, Run1().GetProperty("segments").GetArrayLength());
+
+        // 2. The node is drained (reported failing) under a running segment: the segment ends, the next one waits
+        // for a node; the node comes back and the campaign carries on.
+        TickUntil(r => r.GetProperty("state").GetString() == "running", TimeSpan.FromSeconds(120), "a running segment");
+        var node = _node = Run("sinfo", "-h", "-N", "-o", "%N").Text.Split('\n')[0].Trim();
+        Assert.Equal(0, Run("scontrol", "update", $"NodeName={node}", "State=DRAIN", "Reason=campaign-test").Code);
+        var segmentsBefore = Run1().GetProperty("segments").GetArrayLength();
+        TickUntil(r => r.GetProperty("segments").GetArrayLength() > segmentsBefore, TimeSpan.FromSeconds(150), "the next segment, queued behind the drained node");
+        Thread.Sleep(5000);
+        Tick();
+        Assert.NotEqual("running", Run1().GetProperty("state").GetString()); // queued: no node to run on
+        Assert.Equal(0, Run("scontrol", "update", $"NodeName={node}", "State=RESUME").Code);
+
+        TickUntil(r => r.GetProperty("state").GetString() is "finished" or "held" or "failed", TimeSpan.FromMinutes(6), "the run to end");
+        var run = Run1();
+        output.WriteLine(run.ToString());
+        Assert.Equal("finished", run.GetProperty("state").GetString());
+        var segments = run.GetProperty("segments").EnumerateArray().ToList();
+        Assert.All(segments, s => Assert.False(string.IsNullOrEmpty(s.GetProperty("job_id").GetString())));
+        Assert.Equal(segments.Count, segments.Select(s => s.GetProperty("job_id").GetString()).Distinct().Count());
+    }
+}
