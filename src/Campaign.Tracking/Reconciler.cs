@@ -86,9 +86,10 @@ public sealed class Reconciler
             }
         }
 
+        var runningSegments = TrackingStore.Segments(Db).Where(s => s.Phase == "submitted" && s.JobState == JobState.Running.ToString()).GroupBy(s => s.RunId).ToDictionary(g => g.Key, g => g.First(), StringComparer.Ordinal);
         foreach (var run in runs.Values.Where(r => r.RunState == RunState.Running && !unreachable.Contains(r.Machine)))
         {
-            if (!await Guarded(run.Machine, $"acting on the health of {run.RunId}", () => WatchHealth(run, cancellationToken)).ConfigureAwait(false))
+            if (!await Guarded(run.Machine, $"acting on the health of {run.RunId}", () => WatchHealth(run, runningSegments.GetValueOrDefault(run.RunId), cancellationToken)).ConfigureAwait(false))
             {
                 unreachable.Add(run.Machine);
             }
@@ -162,6 +163,13 @@ public sealed class Reconciler
 
         if (status.State.IsActive())
         {
+            // Nothing new (the common case for a long campaign): no write at all.
+            var unchangedRun = !run.RunState.IsActive() || run.State == (status.State is JobState.Running or JobState.Finishing ? RunState.Running : RunState.Queued).Name();
+            if (segment.JobState == status.State.ToString() && segment.NativeState == status.NativeState && unchangedRun)
+            {
+                return;
+            }
+
             using var tx = Db.BeginTransaction();
             var from = run.State;
             var wasRunning = segment.JobState == JobState.Running.ToString();
@@ -304,9 +312,8 @@ public sealed class Reconciler
     }
 
     /// <summary>Progress, stalls and a growing constraint norm of a running run.</summary>
-    private async Task WatchHealth(TrackedRun run, CancellationToken cancellationToken)
+    private async Task WatchHealth(TrackedRun run, Segment? running, CancellationToken cancellationToken)
     {
-        var running = TrackingStore.SegmentsOf(Db, run.RunId).FirstOrDefault(s => s.Phase == "submitted" && s.JobState == JobState.Running.ToString());
         if (running is null || running.CancelReason is not null)
         {
             return;
@@ -388,10 +395,14 @@ public sealed class Reconciler
     private async Task SubmitNeeded(IReadOnlyList<TrackedRun> runs, IReadOnlySet<string> unreachable, CancellationToken cancellationToken)
     {
         var segments = TrackingStore.Segments(Db);
-        var committed = segments.Where(s => s.Phase != "ended").GroupBy(s => runs.First(r => r.RunId == s.RunId).Machine).ToDictionary(g => g.Key, g => g.Sum(s => s.WorstCaseCoreHours));
+        var machineOf = runs.ToDictionary(r => r.RunId, r => r.Machine, StringComparer.Ordinal);
+        var openByRun = segments.Where(s => s.Phase != "ended").ToLookup(s => s.RunId, StringComparer.Ordinal);
+        var lastNumber = segments.ToLookup(s => s.RunId, StringComparer.Ordinal);
+        var endedByMachine = new Lazy<ILookup<string, Segment>>(() => segments.Where(s => s.Phase == "ended" && machineOf.ContainsKey(s.RunId)).ToLookup(s => machineOf[s.RunId], StringComparer.Ordinal));
+        var committed = segments.Where(s => s.Phase != "ended").GroupBy(s => machineOf[s.RunId]).ToDictionary(g => g.Key, g => g.Sum(s => s.WorstCaseCoreHours));
         foreach (var run in runs.Where(r => !unreachable.Contains(r.Machine)))
         {
-            var openSegments = segments.Where(s => s.RunId == run.RunId && s.Phase != "ended").ToList();
+            var openSegments = openByRun[run.RunId].ToList();
             var needsFirst = run.RunState is RunState.Planned or RunState.WaitingBudget && openSegments.Count == 0;
             var prequeue = Settings.Prequeue && run.RunState == RunState.Running && openSegments.Count == 1 && openSegments[0].JobId is not null;
             if (!needsFirst && !prequeue)
@@ -402,7 +413,7 @@ public sealed class Reconciler
             var profile = _workspace.Machine(run.Machine);
             var wallHours = Settings.SegmentMinutes is { } minutes ? minutes / 60 : profile.WallLimitHours;
             var worst = profile.ChargedCoreHours((int)run.Cores, wallHours);
-            if (!BudgetAllows(run, worst, segments, committed, out var why))
+            if (!BudgetAllows(run, worst, endedByMachine, committed, out var why))
             {
                 if (needsFirst && (run.RunState != RunState.WaitingBudget || run.Reason != why))
                 {
@@ -417,12 +428,12 @@ public sealed class Reconciler
                 continue;
             }
 
-            await Submit(run, profile, wallHours, worst, segments, prequeue ? openSegments[0].JobId : null, cancellationToken).ConfigureAwait(false);
+            await Submit(run, profile, wallHours, worst, lastNumber[run.RunId], prequeue ? openSegments[0].JobId : null, cancellationToken).ConfigureAwait(false);
             committed[run.Machine] = committed.GetValueOrDefault(run.Machine) + worst;
         }
     }
 
-    private bool BudgetAllows(TrackedRun run, double worst, IReadOnlyList<Segment> segments, IReadOnlyDictionary<string, double> committed, out string why)
+    private bool BudgetAllows(TrackedRun run, double worst, Lazy<ILookup<string, Segment>> endedByMachine, IReadOnlyDictionary<string, double> committed, out string why)
     {
         why = "";
         var today = DateOnly.FromDateTime(_time.GetUtcNow().UtcDateTime);
@@ -440,8 +451,7 @@ public sealed class Reconciler
         }
 
         var profile = _workspace.Machine(run.Machine);
-        var machineRuns = TrackingStore.Runs(Db).Where(r => r.Machine == run.Machine).Select(r => r.RunId).ToHashSet();
-        var ended = segments.Where(s => s.Phase == "ended" && machineRuns.Contains(s.RunId)).ToList();
+        var ended = endedByMachine.Value[run.Machine];
         double UsedBetween(DateOnly start, DateOnly end) => ended
             .Where(s => s.EndedAt is not null && DateOnly.FromDateTime(DateTimeOffset.Parse(s.EndedAt, CultureInfo.InvariantCulture).UtcDateTime) is var d && d >= start && d <= end)
             .Sum(s => s.ChargedCoreHours ?? 0);
@@ -467,11 +477,11 @@ public sealed class Reconciler
         return true;
     }
 
-    private async Task Submit(TrackedRun run, MachineProfile profile, double wallHours, double worst, IReadOnlyList<Segment> segments, string? afterAny, CancellationToken cancellationToken)
+    private async Task Submit(TrackedRun run, MachineProfile profile, double wallHours, double worst, IEnumerable<Segment> segmentsOfRun, string? afterAny, CancellationToken cancellationToken)
     {
         var folder = Folder(run);
         var (checkpoint, skipped) = Checkpoints.NewestValid(folder.CheckpointFiles(), Settings.CheckpointMarker.Length > 0, TimeSpan.FromSeconds(Settings.CheckpointSettleSeconds), _time.GetUtcNow());
-        var number = segments.Where(s => s.RunId == run.RunId).Select(s => s.Number).DefaultIfEmpty(0).Max() + 1;
+        var number = segmentsOfRun.Select(s => s.Number).DefaultIfEmpty(0).Max() + 1;
         var name = JobName.For(run.RunId, (int)number);
         Directory.CreateDirectory(Path.Combine(folder.Path, "logs"));
         var environment = new Dictionary<string, string>(_jobEnvironment)

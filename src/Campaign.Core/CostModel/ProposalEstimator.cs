@@ -219,31 +219,22 @@ public static class ProposalEstimator
             for (var g = 0; g < groups.Count; g++)
             {
                 var n = offsets[g].Length;
-                var mu = (double[])offsets[g].Clone();
                 var width = System.Numerics.Vector<double>.Count;
-                for (var k = 0; k < p; k++)
-                {
-                    var column = columns[g][k];
-                    var bk = b[k];
-                    var vb = new System.Numerics.Vector<double>(bk);
-                    var i = 0;
-                    for (; i <= n - width; i += width)
-                    {
-                        (new System.Numerics.Vector<double>(mu, i) + (new System.Numerics.Vector<double>(column, i) * vb)).CopyTo(mu, i);
-                    }
-
-                    for (; i < n; i++)
-                    {
-                        mu[i] += column[i] * bk;
-                    }
-                }
-
                 double c, h;
                 if (n >= CentralLimitRows)
                 {
                     // Given the coefficients, the sum of n independent log-normal residual factors: exact mean and
-                    // (co)variance, drawn as a bivariate normal (the central limit theorem, n >= 500).
+                    // (co)variance, drawn as a bivariate normal (the central limit theorem, n >= 500). One fused,
+                    // vectorised pass: linear predictor, exp, and the five sums.
                     var ratio = ratios[g];
+                    var offset = offsets[g];
+                    var cols = columns[g];
+                    var vbk = new System.Numerics.Vector<double>[p];
+                    for (var k = 0; k < p; k++)
+                    {
+                        vbk[k] = new System.Numerics.Vector<double>(b[k]);
+                    }
+
                     var va = System.Numerics.Vector<double>.Zero;
                     var var_ = System.Numerics.Vector<double>.Zero;
                     var vbb = System.Numerics.Vector<double>.Zero;
@@ -252,7 +243,13 @@ public static class ProposalEstimator
                     var i = 0;
                     for (; i <= n - width; i += width)
                     {
-                        var m = System.Numerics.Vector.Exp(new System.Numerics.Vector<double>(mu, i));
+                        var y = new System.Numerics.Vector<double>(offset, i);
+                        for (var k = 0; k < p; k++)
+                        {
+                            y += new System.Numerics.Vector<double>(cols[k], i) * vbk[k];
+                        }
+
+                        var m = System.Numerics.Vector.Exp(y);
                         var r = new System.Numerics.Vector<double>(ratio, i);
                         var mm = m * m;
                         va += m;
@@ -262,10 +259,20 @@ public static class ProposalEstimator
                         vbrr += mm * r * r;
                     }
 
-                    double a = System.Numerics.Vector.Sum(va), ar = System.Numerics.Vector.Sum(var_), bb = System.Numerics.Vector.Sum(vbb), br = System.Numerics.Vector.Sum(vbr), brr = System.Numerics.Vector.Sum(vbrr);
-                    for (; i < n; i++)
+                    var mu = new double[n - i];
+                    for (var t = 0; t < mu.Length; t++)
                     {
-                        var m = Math.Exp(mu[i]);
+                        mu[t] = offset[i + t];
+                        for (var k = 0; k < p; k++)
+                        {
+                            mu[t] += cols[k][i + t] * b[k];
+                        }
+                    }
+
+                    double a = System.Numerics.Vector.Sum(va), ar = System.Numerics.Vector.Sum(var_), bb = System.Numerics.Vector.Sum(vbb), br = System.Numerics.Vector.Sum(vbr), brr = System.Numerics.Vector.Sum(vbrr);
+                    for (var t = 0; t < mu.Length; t++, i++)
+                    {
+                        var m = Math.Exp(mu[t]);
                         var r = ratio[i];
                         a += m;
                         ar += m * r;
@@ -290,7 +297,13 @@ public static class ProposalEstimator
                     h = 0;
                     for (var i = 0; i < n; i++)
                     {
-                        var cost = Math.Exp(mu[i] + Normal.Sample(random, 0, sd));
+                        var y = offsets[g][i];
+                        for (var k = 0; k < p; k++)
+                        {
+                            y += columns[g][k][i] * b[k];
+                        }
+
+                        var cost = Math.Exp(y + Normal.Sample(random, 0, sd));
                         c += cost;
                         h += cost * ratios[g][i];
                     }
