@@ -121,7 +121,7 @@ public static class Quick
         {
             Console.WriteLine("== Select, coverage (full method: lazy greedy, enumeration where affordable, swaps, bound)");
             var selects = new List<(double, double)>();
-            foreach (var n in new[] { 1_000, 5_000, 20_000 })
+            foreach (var n in new[] { 1_000, 5_000, 10_000, 20_000 })
             {
                 var problem = Instances.Coverage(n);
                 SelectionResult? result = null;
