@@ -11,7 +11,7 @@ public class SelectionBenchmarks
     private SelectionProblem _value = null!;
 
     /// <summary>Number of candidates.</summary>
-    [Params(1_000, 5_000, 10_000)]
+    [Params(1_000, 5_000, 20_000)]
     public int Candidates { get; set; }
 
     [GlobalSetup]
@@ -26,4 +26,10 @@ public class SelectionBenchmarks
 
     [Benchmark]
     public double Value() => Selector.Solve(_value).Objective;
+
+    [Benchmark]
+    public int LazyGreedy() => Selector.GreedyPhase(_coverage, lazy: true).Chosen.Count;
+
+    [Benchmark]
+    public int PlainGreedy() => Candidates <= 2_000 ? Selector.GreedyPhase(_coverage, lazy: false).Chosen.Count : 0;
 }
