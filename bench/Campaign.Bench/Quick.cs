@@ -78,6 +78,7 @@ public static class Quick
             var configs = Enumerable.Range(0, 100_000).Select(i => new BinaryConfiguration(MassRatio.From(1 + 7 * random.NextDouble()), Spin.From(0, 0, 0.9 * random.NextDouble()), Spin.From(0, 0, 0), 0.015 + 0.004 * random.NextDouble())).ToList();
             var lengths = new double[configs.Count];
             Console.WriteLine(string.Create(Inv, $"probe: 100k lengths {Time(() => { for (var i = 0; i < configs.Count; i++) { lengths[i] = SimulatedLength.Estimate(configs[i], new LengthSettings()).Total; } }):F3} s"));
+            Console.WriteLine(string.Create(Inv, $"probe: 100k lengths in parallel {Time(() => Parallel.For(0, configs.Count, i => lengths[i] = SimulatedLength.Estimate(configs[i], new LengthSettings()).Total)):F3} s on {Environment.ProcessorCount} processors"));
             Console.WriteLine(string.Create(Inv, $"probe: 100k predictions {Time(() => { for (var i = 0; i < configs.Count; i++) { model.Predict(CostObservation.For("c", configs[i], 1, 256, machines["a"], lengths[i]), 0.9); } }):F3} s"));
             var probeCandidates = configs.Select((c, i) => new Candidate("c" + i, new RunSpec("c" + i, c, new[] { 1 }, 256), "a", 1, false, null)).ToList();
             Console.WriteLine(string.Create(Inv, $"probe: 100k estimate with 100 samples {Time(() => ProposalEstimator.Estimate(probeCandidates, machines, model, StorageModel.RuleOfThumb, new LengthSettings(), new EstimateOptions { Samples = 100 })):F3} s"));
