@@ -43,11 +43,10 @@ public static class Selector
         var candidates = problem.Candidates;
         var capacity = problem.Pools.Select(p => p.Capacity).ToArray();
         var musts = PlaceMusts(problem, capacity);
-        var f = new CoverageFunction(candidates.Select(c => c.Coordinates).ToList(), candidates.Select(c => c.Value).ToList(), problem.Existing);
+        var f = CoverageStart(problem, musts);
         var chosen = new bool[candidates.Count];
         foreach (var m in musts)
         {
-            f.Add(candidates[m.Candidate].Coordinates);
             chosen[m.Candidate] = true;
         }
 
@@ -94,6 +93,19 @@ public static class Selector
         }
 
         return (picked, f.Value);
+    }
+
+    /// <summary>The coverage function over the candidates as demand points, with existing runs and the must runs covered.</summary>
+    private static CoverageFunction CoverageStart(SelectionProblem problem, IEnumerable<Assignment> musts)
+    {
+        var candidates = problem.Candidates;
+        var f = new CoverageFunction(candidates.Select(c => c.Coordinates).ToList(), candidates.Select(c => c.Value).ToList(), problem.Existing);
+        foreach (var m in musts)
+        {
+            f.Add(candidates[m.Candidate].Coordinates);
+        }
+
+        return f;
     }
 
     private static List<Assignment> PlaceMusts(SelectionProblem problem, double[] capacity)
@@ -186,11 +198,7 @@ public static class Selector
     private static SelectionResult SolveCoverage(SelectionProblem problem, List<Assignment> musts, double[] capacity, IProgress<double>? progress)
     {
         var candidates = problem.Candidates;
-        var start = new CoverageFunction(candidates.Select(c => c.Coordinates).ToList(), candidates.Select(c => c.Value).ToList(), problem.Existing);
-        foreach (var m in musts)
-        {
-            start.Add(candidates[m.Candidate].Coordinates);
-        }
+        var start = CoverageStart(problem, musts);
 
         var slots = problem.MaxRuns is { } cap ? cap - musts.Count : int.MaxValue;
         var reaches = ReachTable(start, candidates);

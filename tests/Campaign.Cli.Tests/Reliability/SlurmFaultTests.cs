@@ -80,25 +80,8 @@ public sealed class SlurmFaultTests(ITestOutputHelper output) : IDisposable
     public async Task The_cycle_rides_out_a_controller_restart_and_a_drained_node_and_the_run_finishes()
     {
         using var cluster = SlurmCluster.Use(exclusive: true);
-        Environment.SetEnvironmentVariable("SLURM_CONF", SlurmCluster.ConfigFile);
         var state = Path.GetDirectoryName(SlurmCluster.ConfigFile)!;
-        File.SetUnixFileMode(_folder.Path, (UnixFileMode)Convert.ToInt32("755", 8));
-        Assert.Equal(0, CliRun.Demo(_folder.Path, "ws").ExitCode);
-        var ws = Path.Combine(_folder.Path, "ws");
-        File.WriteAllText(Path.Combine(ws, "machines", "minislurm.toml"),
-            "name = \"minislurm\"\nbatch_system = \"slurm\"\ncores_per_node = 8\nmemory_per_node_gb = 2\nwall_limit_hours = 1\ncharge_whole_nodes = false\n");
-        var config = File.ReadAllText(Path.Combine(ws, "campaign.toml"))
-            .Replace("machines = [\"halyard\", \"gunwale\", \"workbench\"]", "machines = [\"halyard\", \"gunwale\", \"workbench\", \"minislurm\"]", StringComparison.Ordinal)
-            .Replace("segment_minutes = 0.05", "segment_minutes = 1", StringComparison.Ordinal)
-            .Replace("warning_seconds = 1", "warning_seconds = 30", StringComparison.Ordinal)
-            .Replace("stall_minutes = 0.5", "stall_minutes = 5", StringComparison.Ordinal);
-        File.WriteAllText(Path.Combine(ws, "campaign.toml"), config);
-        Assert.Equal(0, CliRun.Live(_folder.Path, "--dir", "ws", "track", "--on", "minislurm", "--cores", "1", "--only", "sm-q1-a00", "--rehearsal").ExitCode);
-        foreach (var level in new[] { 2, 3 })
-        {
-            Assert.Equal(0, CliRun.Live(_folder.Path, "--dir", "ws", "abandon", $"sm-q1-a00.L{level}").ExitCode);
-        }
-
+        var ws = SlurmWorkspace.Create(_folder.Path, warningSeconds: 30, rehearsal: true);
         File.WriteAllText(Path.Combine(ws, "runs", "sm-q1-a00.L1", "payload.json"), "{\"steps_per_second\": 60, \"checkpoint_every\": 100}");
         TickUntil(r => r.GetProperty("state").GetString() == "running", TimeSpan.FromSeconds(60), "the first segment to run");
 
