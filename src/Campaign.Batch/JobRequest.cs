@@ -74,7 +74,7 @@ public sealed record JobRequest(
 
         if (problems.Count > 0)
         {
-            throw new BatchSystemException(BatchErrorKind.Permanent, "invalid job request: " + string.Join("; ", problems));
+            throw new BatchSystemException(BatchErrorKind.Rejected, "invalid job request: " + string.Join("; ", problems));
         }
     }
 

@@ -1,115 +1,166 @@
 using System.Globalization;
 using System.Text.Json;
-using Campaign.Core.Domain;
-using Campaign.Core.Selection;
+using Campaign.Core.Campaign;
+using Campaign.Core.CostModel;
 using Dapper;
 using Microsoft.Data.Sqlite;
 
 namespace Campaign.Store;
 
-/// <summary>A configuration in a stored plan.</summary>
-/// <param name="ConfigId">Candidate id.</param>
-/// <param name="Machine">Machine it is assigned to.</param>
-/// <param name="Configuration">Its physics.</param>
-/// <param name="Levels">Resolution levels.</param>
-/// <param name="Cores">Cores per job.</param>
-/// <param name="Cost">Charged core-hours at the plan's quantile.</param>
-/// <param name="Median">Median charged core-hours.</param>
-/// <param name="High">Upper charged core-hours.</param>
-/// <param name="Status">"planned" until the run starts; anything else means it has started and is never dropped.</param>
-public sealed record PlannedRun(string ConfigId, string Machine, BinaryConfiguration Configuration, IReadOnlyList<int> Levels, int Cores, double Cost, double Median, double High, string Status);
-
-/// <summary>A stored plan version.</summary>
-public sealed record Plan(long Id, string CreatedAt, string Objective, double Quantile, double Value, double UpperBound, string Method, IReadOnlyList<PlannedRun> Runs);
+/// <summary>What a plan save is asked to store.</summary>
+/// <param name="Objective">coverage or value.</param>
+/// <param name="Quantile">Cost quantile of the entries' costs.</param>
+/// <param name="Value">Objective value.</param>
+/// <param name="UpperBound">Upper bound on the best objective.</param>
+/// <param name="Method">How it was solved.</param>
+/// <param name="Source">The candidate file.</param>
+/// <param name="Entries">Every row: chosen and carried over.</param>
+/// <param name="Carried">Configurations carried over because they had started.</param>
+/// <param name="Reserved">Charged core-hours taken off each budget before choosing.</param>
+/// <param name="Pools">The budgets' use, for the event log and the report.</param>
+public sealed record PlanDraft(
+    string Objective,
+    double Quantile,
+    double Value,
+    double UpperBound,
+    string Method,
+    string Source,
+    IReadOnlyList<PlanEntry> Entries,
+    IReadOnlyList<CarriedConfiguration> Carried,
+    IReadOnlyDictionary<string, double> Reserved,
+    object Pools);
 
 /// <summary>
-/// Versioned plans: each save is a new version; runs of the previous version that have started are carried into
-/// the new one with their status, whatever the new selection says (re-planning plans around them).
+/// Versioned plans: each save is a new version with one row per configuration and level (and the trials), kept
+/// with the estimate it was chosen on. Whether a plan run has started, finished or been given up is never stored
+/// here: it is derived from the tracked runs (<see cref="CampaignStanding"/>).
 /// </summary>
 public static class PlanStore
 {
-    /// <summary>The status of a run that has not started.</summary>
-    public const string Planned = "planned";
+    private const string EntryColumns =
+        "config_id AS ConfigId, level AS Level, kind AS Kind, machine AS Machine, cores AS Cores, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, " +
+        "target_length AS TargetLength, length_m AS LengthM, median AS Median, mean AS Mean, low AS Low, high AS High, wall_hours AS WallHours, segments AS Segments, node_hours AS NodeHours, " +
+        "charged AS Charged, charged_high AS ChargedHigh, cost AS Cost, checkpoint_gb AS CheckpointGb, output_gb AS OutputGb, source AS Source, extrapolation AS Extrapolation, log_se AS LogSe, dof AS Dof, runs AS Runs";
 
-    /// <summary>Saves a new version in one transaction; returns its id and how many started runs were carried over.</summary>
-    public static (long Id, int CarriedOver) Save(SqliteConnection connection, string objective, double quantile, SelectionResult result, IReadOnlyList<PlannedRun> runs, IReadOnlyList<PoolUse> pools, string source, TimeProvider time)
+    /// <summary>Saves a new version in one transaction, with its event; returns its id.</summary>
+    public static long Save(SqliteConnection connection, PlanDraft draft, TimeProvider time)
     {
-        var previous = Current(connection);
-        var started = previous?.Runs.Where(r => r.Status != Planned).ToList() ?? new List<PlannedRun>();
-        var merged = runs.Select(r => started.FirstOrDefault(s => s.ConfigId == r.ConfigId) ?? r).ToList();
-        var carried = started.Where(s => runs.All(r => r.ConfigId != s.ConfigId)).ToList();
-        merged.AddRange(carried);
-
         using var transaction = connection.BeginTransaction();
         var id = connection.ExecuteScalar<long>(
             """
-            INSERT INTO plans (created_at, objective, quantile, value, upper_bound, method, pools_json, source)
-            VALUES (@At, @Objective, @Quantile, @Value, @Bound, @Method, @Pools, @Source) RETURNING id
+            INSERT INTO plans (created_at, objective, quantile, value, upper_bound, method, pools_json, source, carried_json, reserved_json)
+            VALUES (@At, @Objective, @Quantile, @Value, @Bound, @Method, @Pools, @Source, @Carried, @Reserved) RETURNING id
             """,
             new
             {
                 At = time.GetUtcNow().ToString("O", CultureInfo.InvariantCulture),
-                Objective = objective,
-                Quantile = quantile,
-                Value = result.Objective,
-                Bound = result.UpperBound,
-                result.Method,
-                Pools = JsonSerializer.Serialize(pools),
-                Source = source,
+                draft.Objective,
+                draft.Quantile,
+                draft.Value,
+                Bound = draft.UpperBound,
+                draft.Method,
+                Pools = JsonSerializer.Serialize(draft.Pools),
+                draft.Source,
+                Carried = JsonSerializer.Serialize(draft.Carried),
+                Reserved = JsonSerializer.Serialize(draft.Reserved),
             },
             transaction);
-        foreach (var r in merged)
+        foreach (var e in draft.Entries)
         {
-            var c = r.Configuration;
+            var r = e.Estimate;
             connection.Execute(
                 """
-                INSERT INTO plan_runs (plan_id, config_id, machine, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0, levels, cores, cost, median, high, status)
-                VALUES (@Id, @ConfigId, @Machine, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0, @Levels, @Cores, @Cost, @Median, @High, @Status)
+                INSERT INTO plan_entries (plan_id, config_id, level, kind, machine, cores, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0,
+                    target_length, length_m, median, mean, low, high, wall_hours, segments, node_hours, charged, charged_high, cost,
+                    checkpoint_gb, output_gb, source, extrapolation, log_se, dof, runs)
+                VALUES (@Id, @ConfigId, @Level, @Kind, @Machine, @Cores, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0,
+                    @TargetLength, @LengthM, @Median, @Mean, @Low, @High, @WallHours, @Segments, @NodeHours, @Charged, @ChargedHigh, @Cost,
+                    @CheckpointGb, @OutputGb, @Source, @Extrapolation, @LogSe, @Dof, @Runs)
                 """,
-                ConfigurationColumns.Parameters(c, new
+                ConfigurationColumns.Parameters(e.Configuration, new
                 {
                     Id = id,
-                    r.ConfigId,
+                    ConfigId = r.Id,
+                    r.Level,
+                    Kind = e.Kind == PlanEntryKind.Trials ? "trials" : "run",
                     r.Machine,
-                    Levels = string.Join(";", r.Levels),
                     r.Cores,
-                    r.Cost,
+                    e.TargetLength,
+                    r.LengthM,
                     r.Median,
+                    r.Mean,
+                    r.Low,
                     r.High,
-                    r.Status,
+                    r.WallHours,
+                    r.Segments,
+                    r.NodeHours,
+                    Charged = r.ChargedCoreHours,
+                    r.ChargedHigh,
+                    e.Cost,
+                    r.CheckpointGb,
+                    r.OutputGb,
+                    r.Source,
+                    Extrapolation = string.Join("\n", r.Extrapolation),
+                    LogSe = r.LogStandardError,
+                    Dof = double.IsFinite(r.DegreesOfFreedom) ? r.DegreesOfFreedom : 1e308,
+                    r.Runs,
                 }),
                 transaction);
         }
 
-        EventLog.Append(connection, transaction, time, "plan.save", null, $"plan {id}: {merged.Count} configurations ({carried.Count} started runs carried over), {objective} {result.Objective.ToString("G6", CultureInfo.InvariantCulture)}");
+        var carried = draft.Carried.Count == 0 ? "" : $"; carried over (started): {string.Join(", ", draft.Carried.Select(c => c.ConfigId))}";
+        EventLog.Append(connection, transaction, time, "plan.save", null, $"plan {id}: {draft.Entries.Select(e => e.ConfigId).Distinct().Count()} configurations, {draft.Objective} {draft.Value.ToString("G6", CultureInfo.InvariantCulture)}{carried}");
         transaction.Commit();
-        return (id, carried.Count);
+        return id;
     }
 
     /// <summary>The newest plan, or null.</summary>
-    public static Plan? Current(SqliteConnection connection)
+    public static PlanVersion? Current(SqliteConnection connection, SqliteTransaction? transaction = null)
     {
-        var plan = connection.QueryFirstOrDefault<PlanRow>("SELECT id AS Id, created_at AS CreatedAt, objective AS Objective, quantile AS Quantile, value AS Value, upper_bound AS UpperBound, method AS Method FROM plans ORDER BY id DESC LIMIT 1");
+        var plan = connection.QueryFirstOrDefault<PlanRow>(
+            "SELECT id AS Id, created_at AS CreatedAt, objective AS Objective, quantile AS Quantile, value AS Value, upper_bound AS UpperBound, method AS Method, source AS Source, carried_json AS CarriedJson, reserved_json AS ReservedJson FROM plans ORDER BY id DESC LIMIT 1",
+            transaction: transaction);
         if (plan is null)
         {
             return null;
         }
 
-        var runs = connection.Query<RunRow>(
-            "SELECT config_id AS ConfigId, machine AS Machine, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, levels AS Levels, cores AS Cores, cost AS Cost, median AS Median, high AS High, status AS Status FROM plan_runs WHERE plan_id = @Id ORDER BY config_id",
-            new { plan.Id })
-            .Select(r => new PlannedRun(
-                r.ConfigId,
-                r.Machine,
-                r.Configuration,
-                r.Levels.Split(';').Select(l => int.Parse(l, CultureInfo.InvariantCulture)).ToList(),
-                (int)r.Cores,
-                r.Cost,
-                r.Median,
-                r.High,
-                r.Status))
+        var entries = connection.Query<EntryRow>($"SELECT {EntryColumns} FROM plan_entries WHERE plan_id = @Id ORDER BY config_id, kind, level", new { plan.Id }, transaction)
+            .Select(r => r.ToEntry())
             .ToList();
-        return new Plan(plan.Id, plan.CreatedAt, plan.Objective, plan.Quantile, plan.Value, plan.UpperBound, plan.Method, runs);
+        return new PlanVersion(
+            plan.Id,
+            DateTimeOffset.Parse(plan.CreatedAt, CultureInfo.InvariantCulture),
+            plan.Objective,
+            plan.Quantile,
+            plan.Value,
+            plan.UpperBound,
+            plan.Method,
+            plan.Source,
+            entries,
+            JsonSerializer.Deserialize<List<CarriedConfiguration>>(plan.CarriedJson) ?? new List<CarriedConfiguration>(),
+            JsonSerializer.Deserialize<Dictionary<string, double>>(plan.ReservedJson) ?? new Dictionary<string, double>());
+    }
+
+    /// <summary>
+    /// The newest stored entry of each of <paramref name="runs"/> (configuration and level) in any plan version:
+    /// for runs tracked from an older plan that the newest one does not hold.
+    /// </summary>
+    public static IReadOnlyList<PlanEntry> NewestEntries(SqliteConnection connection, IReadOnlyCollection<(string ConfigId, int Level)> runs)
+    {
+        var found = new List<PlanEntry>();
+        foreach (var (configId, level) in runs)
+        {
+            var row = connection.QueryFirstOrDefault<EntryRow>(
+                $"SELECT {EntryColumns} FROM plan_entries WHERE config_id = @configId AND level = @level AND kind = 'run' ORDER BY plan_id DESC LIMIT 1",
+                new { configId, level });
+            if (row is not null)
+            {
+                found.Add(row.ToEntry());
+            }
+        }
+
+        return found;
     }
 
     private sealed class PlanRow
@@ -127,24 +178,90 @@ public static class PlanStore
         public double UpperBound { get; set; }
 
         public string Method { get; set; } = "";
+
+        public string Source { get; set; } = "";
+
+        public string CarriedJson { get; set; } = "[]";
+
+        public string ReservedJson { get; set; } = "{}";
     }
 
-    private sealed class RunRow : ConfigurationColumns
+    private sealed class EntryRow : ConfigurationColumns
     {
         public string ConfigId { get; set; } = "";
 
-        public string Machine { get; set; } = "";
+        public long Level { get; set; }
 
-        public string Levels { get; set; } = "";
+        public string Kind { get; set; } = "";
+
+        public string Machine { get; set; } = "";
 
         public long Cores { get; set; }
 
-        public double Cost { get; set; }
+        public double? TargetLength { get; set; }
+
+        public double LengthM { get; set; }
 
         public double Median { get; set; }
 
+        public double Mean { get; set; }
+
+        public double Low { get; set; }
+
         public double High { get; set; }
 
-        public string Status { get; set; } = "";
+        public double WallHours { get; set; }
+
+        public long Segments { get; set; }
+
+        public double NodeHours { get; set; }
+
+        public double Charged { get; set; }
+
+        public double ChargedHigh { get; set; }
+
+        public double Cost { get; set; }
+
+        public double CheckpointGb { get; set; }
+
+        public double OutputGb { get; set; }
+
+        public string Source { get; set; } = "";
+
+        public string Extrapolation { get; set; } = "";
+
+        public double LogSe { get; set; }
+
+        public double Dof { get; set; }
+
+        public long Runs { get; set; }
+
+        public PlanEntry ToEntry()
+        {
+            var estimate = new EstimateRow(
+                ConfigId,
+                (int)Level,
+                Kind == "trials" ? "ecc" : "run",
+                Machine,
+                (int)Cores,
+                LengthM,
+                Median,
+                Mean,
+                Low,
+                High,
+                WallHours,
+                (int)Segments,
+                NodeHours,
+                Charged,
+                ChargedHigh,
+                CheckpointGb,
+                OutputGb,
+                Source,
+                Extrapolation.Length == 0 ? Array.Empty<string>() : Extrapolation.Split('\n'),
+                LogSe,
+                Dof >= 1e308 ? double.PositiveInfinity : Dof,
+                (int)Runs);
+            return new PlanEntry(Configuration, estimate, Cost, TargetLength);
+        }
     }
 }

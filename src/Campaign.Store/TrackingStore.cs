@@ -1,4 +1,5 @@
 using System.Globalization;
+using Campaign.Core.Campaign;
 using Campaign.Core.Domain;
 using Campaign.Core.Tracking;
 using Dapper;
@@ -52,7 +53,25 @@ public sealed class TrackedRun : ConfigurationColumns
     /// <summary>A rehearsal (a scaled-down run, e.g. on a workstation): its cost is not written into the run logs.</summary>
     public bool Rehearsal { get; set; }
 
+    /// <summary>Segments in a row that ended by the warning signal before any progress.</summary>
+    public long ShortSegments { get; set; }
+
     public RunState RunState => RunStates.Parse(State);
+
+    /// <summary>The typed view the rest of the campaign reads.</summary>
+    public RunRecord ToRecord() => new(
+        RunId,
+        ConfigId,
+        (int)Level,
+        Machine,
+        (int)Cores,
+        Configuration,
+        TargetLength,
+        RunState,
+        Reason,
+        Rehearsal,
+        ProgressT,
+        FinishedAt is null ? null : DateTimeOffset.Parse(FinishedAt, CultureInfo.InvariantCulture));
 }
 
 /// <summary>A job segment of a tracked run as stored.</summary>
@@ -107,9 +126,40 @@ public sealed record RunEvent(long Id, string At, string RunId, string FromState
 /// <summary>Reads and writes tracked runs, segments and run events. Callers own the transactions.</summary>
 public static class TrackingStore
 {
-    private const string RunColumns = "run_id AS RunId, config_id AS ConfigId, level AS Level, machine AS Machine, cores AS Cores, folder AS Folder, target_length AS TargetLength, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, position AS Position, state AS State, reason AS Reason, failures_with_progress AS FailuresWithProgress, failures_without_progress AS FailuresWithoutProgress, stall_restarts AS StallRestarts, progress_t AS ProgressT, progress_at AS ProgressAt, norm AS Norm, checkpoint AS Checkpoint, created_at AS CreatedAt, updated_at AS UpdatedAt, finished_at AS FinishedAt, rehearsal AS Rehearsal";
+    private const string RunColumns = "run_id AS RunId, config_id AS ConfigId, level AS Level, machine AS Machine, cores AS Cores, folder AS Folder, target_length AS TargetLength, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, position AS Position, state AS State, reason AS Reason, failures_with_progress AS FailuresWithProgress, failures_without_progress AS FailuresWithoutProgress, stall_restarts AS StallRestarts, progress_t AS ProgressT, progress_at AS ProgressAt, norm AS Norm, checkpoint AS Checkpoint, created_at AS CreatedAt, updated_at AS UpdatedAt, finished_at AS FinishedAt, rehearsal AS Rehearsal, short_segments AS ShortSegments";
 
     private const string SegmentColumns = "id AS Id, run_id AS RunId, number AS Number, job_name AS JobName, job_id AS JobId, phase AS Phase, job_state AS JobState, native_state AS NativeState, exit_code AS ExitCode, signal AS Signal, elapsed_seconds AS ElapsedSeconds, charged_core_hours AS ChargedCoreHours, worst_case_core_hours AS WorstCaseCoreHours, wall_seconds AS WallSeconds, start_t AS StartT, restart_from AS RestartFrom, cancel_reason AS CancelReason, submitted_at AS SubmittedAt, started_at AS StartedAt, ended_at AS EndedAt";
+
+    /// <summary>Every tracked run, typed.</summary>
+    public static IReadOnlyList<RunRecord> Records(SqliteConnection connection, SqliteTransaction? transaction = null) =>
+        Runs(connection, transaction).Select(r => r.ToRecord()).ToList();
+
+    /// <summary>Every segment's charge (or commitment), with the machine of its run.</summary>
+    public static IReadOnlyList<SegmentCharge> Charges(SqliteConnection connection, SqliteTransaction? transaction = null) =>
+        connection.Query<(string RunId, string Machine, string Phase, double WorstCase, double? Charged, string SubmittedAt, string? StartedAt, string? EndedAt)>(
+            "SELECT s.run_id, r.machine, s.phase, s.worst_case_core_hours, s.charged_core_hours, s.submitted_at, s.started_at, s.ended_at FROM segments s JOIN tracked_runs r ON r.run_id = s.run_id",
+            transaction: transaction)
+        .Select(s => new SegmentCharge(s.RunId, s.Machine, PhaseOf(s.Phase), s.WorstCase, s.Charged, Time(s.SubmittedAt), s.StartedAt is null ? null : Time(s.StartedAt), s.EndedAt is null ? null : Time(s.EndedAt)))
+        .ToList();
+
+    /// <summary>The stored name of a segment phase.</summary>
+    public static string NameOf(SegmentPhase phase) => phase switch
+    {
+        SegmentPhase.Intent => "intent",
+        SegmentPhase.Submitted => "submitted",
+        _ => "ended",
+    };
+
+    /// <summary>Parses a stored segment phase.</summary>
+    public static SegmentPhase PhaseOf(string name) => name switch
+    {
+        "intent" => SegmentPhase.Intent,
+        "submitted" => SegmentPhase.Submitted,
+        "ended" => SegmentPhase.Ended,
+        _ => throw new InvalidDataException($"segments.phase = {name}: expected intent, submitted or ended"),
+    };
+
+    private static DateTimeOffset Time(string text) => DateTimeOffset.Parse(text, CultureInfo.InvariantCulture);
 
     public static IReadOnlyList<TrackedRun> Runs(SqliteConnection connection, SqliteTransaction? transaction = null) =>
         connection.Query<TrackedRun>($"SELECT {RunColumns} FROM tracked_runs ORDER BY position, run_id", transaction: transaction).ToList();
@@ -153,7 +203,7 @@ public static class TrackingStore
             """
             UPDATE tracked_runs SET machine = @Machine, cores = @Cores, state = @State, reason = @Reason, failures_with_progress = @FailuresWithProgress,
                 failures_without_progress = @FailuresWithoutProgress, stall_restarts = @StallRestarts, progress_t = @ProgressT, progress_at = @ProgressAt,
-                norm = @Norm, checkpoint = @Checkpoint, updated_at = @UpdatedAt, finished_at = @FinishedAt
+                norm = @Norm, checkpoint = @Checkpoint, updated_at = @UpdatedAt, finished_at = @FinishedAt, short_segments = @ShortSegments
             WHERE run_id = @RunId
             """,
             run,

@@ -20,14 +20,24 @@ public static class BatchSystemFactory
     /// <param name="retry">The retry and timeout settings of the decorator.</param>
     /// <param name="time">The clock.</param>
     /// <param name="inside">Optional: wraps each adapter inside the decorator (fault injection in the reliability tests).</param>
-    public static IReadOnlyDictionary<string, IBatchSystem> Create(Workspace workspace, SupervisorCommand supervisor, RetryOptions retry, TimeProvider time, Func<string, IBatchSystem, IBatchSystem>? inside = null)
+    public static IReadOnlyDictionary<string, IBatchSystem> Create(Workspace workspace, SupervisorCommand supervisor, RetryOptions retry, TimeProvider time, Func<string, IBatchSystem, IBatchSystem>? inside = null) =>
+        Create(workspace.Root, workspace.Machines, supervisor, retry, time, inside);
+
+    /// <summary>Builds the adapters for the machines of the workspace in <paramref name="root"/>.</summary>
+    /// <param name="root">The workspace folder (the local runner keeps its state under it).</param>
+    /// <param name="machines">The machine profiles.</param>
+    /// <param name="supervisor">How the local runner starts its job supervisors.</param>
+    /// <param name="retry">The retry and timeout settings of the decorator.</param>
+    /// <param name="time">The clock.</param>
+    /// <param name="inside">Optional: wraps each adapter inside the decorator.</param>
+    public static IReadOnlyDictionary<string, IBatchSystem> Create(string root, IReadOnlyDictionary<string, MachineProfile> machines, SupervisorCommand supervisor, RetryOptions retry, TimeProvider time, Func<string, IBatchSystem, IBatchSystem>? inside = null)
     {
         var systems = new Dictionary<string, IBatchSystem>(StringComparer.Ordinal);
-        foreach (var machine in workspace.Machines.Values)
+        foreach (var machine in machines.Values)
         {
             IBatchSystem adapter = machine.BatchSystem switch
             {
-                BatchSystemKind.Local => new LocalBatchSystem(new LocalOptions(Path.Combine(workspace.Root, "local-runner", machine.Name), machine.CoresPerNode, supervisor)),
+                BatchSystemKind.Local => new LocalBatchSystem(new LocalOptions(Path.Combine(root, "local-runner", machine.Name), machine.CoresPerNode, supervisor)),
                 BatchSystemKind.Slurm => new SlurmBatchSystem(new SlurmOptions { Partition = machine.Partition, Account = machine.Account }),
                 _ => new PbsBatchSystem(new PbsOptions { Queue = machine.Partition, Account = machine.Account }),
             };

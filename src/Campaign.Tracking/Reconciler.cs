@@ -1,5 +1,6 @@
 using System.Globalization;
 using Campaign.Batch;
+using Campaign.Core.Campaign;
 using Campaign.Core.Domain;
 using Campaign.Core.Tracking;
 using Campaign.Store;
@@ -24,6 +25,8 @@ public sealed class Reconciler
     private readonly List<Notice> _notices = new();
     private readonly List<string> _messages = new();
     private readonly Dictionary<string, int> _queries = new(StringComparer.Ordinal);
+    private readonly Dictionary<string, string> _faults = new(StringComparer.Ordinal);
+    private readonly HashSet<string> _answered = new(StringComparer.Ordinal);
     private int _submitted;
     private int _ended;
     private int _finished;
@@ -95,27 +98,67 @@ public sealed class Reconciler
             }
         }
 
+        unreachable.UnionWith(_faults.Keys);
         await SubmitNeeded(runs.Values.OrderBy(r => r.Position).ToList(), unreachable, cancellationToken).ConfigureAwait(false);
 
+        RecordMachines();
         var failures = await new Notifier(Settings.NotifyCommand, _workspace.Root).SendAsync(_notices, cancellationToken).ConfigureAwait(false);
         _messages.AddRange(failures);
         var all = TrackingStore.Runs(Db);
-        return new TickReport(_submitted, _ended, _finished, _held, all.Count(r => r.RunState == RunState.WaitingBudget), all.Count(r => r.RunState.IsActive()), _queries, _messages.ToList());
+        return new TickReport(_submitted, _ended, _finished, _held, all.Count(r => r.RunState == RunState.WaitingBudget), all.Count(r => r.RunState.IsActive()), _queries, _messages.ToList(), _faults.Keys.Order(StringComparer.Ordinal).ToList());
     }
 
-    /// <summary>Runs a batch-system call; on a batch-system error notes it for the report and returns false.</summary>
+    /// <summary>
+    /// Runs a batch-system call; on a batch-system error the machine is at fault for this cycle (nothing is concluded
+    /// about its runs) and false is returned.
+    /// </summary>
     private async Task<bool> Guarded(string machine, string what, Func<Task> call)
     {
         try
         {
             await call().ConfigureAwait(false);
+            _answered.Add(machine);
             return true;
         }
         catch (BatchSystemException e)
         {
-            _messages.Add($"{machine}: batch system error while {what} ({e.Message}); left as it was, tried again next cycle");
+            MachineFault(machine, what, e);
             return false;
         }
+    }
+
+    /// <summary>Notes that <paramref name="machine"/> failed this cycle: one message per machine, the whole text for the event log.</summary>
+    private void MachineFault(string machine, string what, BatchSystemException e)
+    {
+        if (_faults.TryAdd(machine, $"while {what}: {e.Message}"))
+        {
+            _messages.Add($"{machine}: unreachable ({BatchErrorText.FirstLine(e.Message)}); its runs are left as they were; tried again next cycle");
+        }
+    }
+
+    /// <summary>Stores which machines were at fault this cycle and which answered again, and when the cycle ran.</summary>
+    private void RecordMachines()
+    {
+        var now = _time.GetUtcNow();
+        using var tx = Db.BeginTransaction();
+        foreach (var (machine, detail) in _faults)
+        {
+            if (MachineFaultStore.Record(Db, tx, machine, BatchErrorText.FirstLine(detail.Split(": ", 2)[^1]), now))
+            {
+                EventLog.Append(Db, tx, _time, "machine.unreachable", machine, detail);
+            }
+        }
+
+        foreach (var machine in _answered.Where(m => !_faults.ContainsKey(m)))
+        {
+            if (MachineFaultStore.Clear(Db, tx, machine) is { } cleared)
+            {
+                EventLog.Append(Db, tx, _time, "machine.reachable", machine, $"answered again (unreachable since {cleared.Since.ToString("O", CultureInfo.InvariantCulture)})");
+            }
+        }
+
+        MachineFaultStore.NoteCycle(Db, tx, now);
+        tx.Commit();
     }
 
     private IBatchSystem Batch(string machine) =>
@@ -239,10 +282,16 @@ public sealed class Reconciler
         var cancelOthers = false;
         if (run.RunState.IsActive())
         {
-            var end = new SegmentEnd(ending, segment.StartT, latest, run.TargetLength, folder.IsDone, (int)run.FailuresWithProgress, (int)run.FailuresWithoutProgress);
+            if (ending != "completed" && latest <= segment.StartT && Signals.Number(Settings.WarningSignal) is { } warning && Signals.EndedBy(warning, status.ExitCode, status.Signal))
+            {
+                ending = "too_short";
+            }
+
+            var end = new SegmentEnd(ending, segment.StartT, latest, run.TargetLength, folder.IsDone, (int)run.FailuresWithProgress, (int)run.FailuresWithoutProgress, (int)run.ShortSegments);
             var (step, why, withProgress, without) = SegmentDecision.Decide(end, Settings);
             run.FailuresWithProgress = withProgress;
             run.FailuresWithoutProgress = without;
+            run.ShortSegments = ending == "too_short" ? run.ShortSegments + 1 : 0;
             var exit = status.ExitCode is null ? "" : $", exit {status.ExitCode}:{status.Signal ?? 0}";
             switch (step)
             {
@@ -395,13 +444,17 @@ public sealed class Reconciler
     private async Task SubmitNeeded(IReadOnlyList<TrackedRun> runs, IReadOnlySet<string> unreachable, CancellationToken cancellationToken)
     {
         var segments = TrackingStore.Segments(Db);
-        var machineOf = runs.ToDictionary(r => r.RunId, r => r.Machine, StringComparer.Ordinal);
         var openByRun = segments.Where(s => s.Phase != "ended").ToLookup(s => s.RunId, StringComparer.Ordinal);
         var lastNumber = segments.ToLookup(s => s.RunId, StringComparer.Ordinal);
-        var endedByMachine = new Lazy<ILookup<string, Segment>>(() => segments.Where(s => s.Phase == "ended" && machineOf.ContainsKey(s.RunId)).ToLookup(s => machineOf[s.RunId], StringComparer.Ordinal));
-        var committed = segments.Where(s => s.Phase != "ended").GroupBy(s => machineOf[s.RunId]).ToDictionary(g => g.Key, g => g.Sum(s => s.WorstCaseCoreHours));
-        foreach (var run in runs.Where(r => !unreachable.Contains(r.Machine)))
+        var ledger = new CampaignLedger(_workspace.Config.Allocations, _workspace.Machines, TrackingStore.Charges(Db));
+        var today = DateOnly.FromDateTime(_time.GetUtcNow().UtcDateTime);
+        foreach (var run in runs)
         {
+            if (unreachable.Contains(run.Machine) || _faults.ContainsKey(run.Machine))
+            {
+                continue;
+            }
+
             var openSegments = openByRun[run.RunId].ToList();
             var needsFirst = run.RunState is RunState.Planned or RunState.WaitingBudget && openSegments.Count == 0;
             var prequeue = Settings.Prequeue && run.RunState == RunState.Running && openSegments.Count == 1 && openSegments[0].JobId is not null;
@@ -413,7 +466,9 @@ public sealed class Reconciler
             var profile = _workspace.Machine(run.Machine);
             var wallHours = Settings.SegmentMinutes is { } minutes ? minutes / 60 : profile.WallLimitHours;
             var worst = profile.ChargedCoreHours((int)run.Cores, wallHours);
-            if (!BudgetAllows(run, worst, endedByMachine, committed, out var why))
+            var verdict = ledger.Allows(run.Machine, worst, today, Settings.ReserveCoreHours);
+            var why = verdict.Why;
+            if (!verdict.Allowed)
             {
                 if (needsFirst && (run.RunState != RunState.WaitingBudget || run.Reason != why))
                 {
@@ -428,56 +483,15 @@ public sealed class Reconciler
                 continue;
             }
 
-            await Submit(run, profile, wallHours, worst, lastNumber[run.RunId], prequeue ? openSegments[0].JobId : null, cancellationToken).ConfigureAwait(false);
-            committed[run.Machine] = committed.GetValueOrDefault(run.Machine) + worst;
-        }
-    }
-
-    private bool BudgetAllows(TrackedRun run, double worst, Lazy<ILookup<string, Segment>> endedByMachine, IReadOnlyDictionary<string, double> committed, out string why)
-    {
-        why = "";
-        var today = DateOnly.FromDateTime(_time.GetUtcNow().UtcDateTime);
-        var allocations = _workspace.Config.Allocations.Where(a => a.Machine == run.Machine).ToList();
-        if (allocations.Count == 0)
-        {
-            return true; // no allocation configured for this machine (a workstation): nothing to guard
-        }
-
-        var current = allocations.FirstOrDefault(a => a.Start <= today && today <= a.End);
-        if (current is null)
-        {
-            why = $"waiting for budget: no allocation on {run.Machine} covers {today:yyyy-MM-dd}";
-            return false;
-        }
-
-        var profile = _workspace.Machine(run.Machine);
-        var ended = endedByMachine.Value[run.Machine];
-        double UsedBetween(DateOnly start, DateOnly end) => ended
-            .Where(s => s.EndedAt is not null && DateOnly.FromDateTime(DateTimeOffset.Parse(s.EndedAt, CultureInfo.InvariantCulture).UtcDateTime) is var d && d >= start && d <= end)
-            .Sum(s => s.ChargedCoreHours ?? 0);
-        var reserve = Settings.ReserveCoreHours;
-        var committedHere = committed.GetValueOrDefault(run.Machine);
-        if (!BudgetGuard.Allows(worst, UsedBetween(current.Start, current.End), committedHere, current.CoreHours(profile), reserve, out var left))
-        {
-            why = $"waiting for budget: the next segment may charge {Show(worst)} core-hours; {Show(Math.Max(0, left))} left on {run.Machine} (allocation {Show(current.CoreHours(profile))}, reserve {Show(reserve)})";
-            return false;
-        }
-
-        var window = current.Windows.FirstOrDefault(w => w.Start <= today && today <= w.End);
-        if (window is not null)
-        {
-            var amount = current.Unit == AllocationUnit.CoreHours ? window.Amount : window.Amount * profile.CoresPerNode;
-            if (!BudgetGuard.Allows(worst, UsedBetween(window.Start, window.End), committedHere, amount, 0, out var windowLeft))
+            if (await Submit(run, profile, wallHours, worst, lastNumber[run.RunId], prequeue ? openSegments[0].JobId : null, cancellationToken).ConfigureAwait(false))
             {
-                why = $"waiting for budget: the next segment may charge {Show(worst)} core-hours; {Show(Math.Max(0, windowLeft))} left in the window {window.Start:yyyy-MM-dd}..{window.End:yyyy-MM-dd} on {run.Machine}";
-                return false;
+                ledger.Commit(run.Machine, worst);
             }
         }
-
-        return true;
     }
 
-    private async Task Submit(TrackedRun run, MachineProfile profile, double wallHours, double worst, IEnumerable<Segment> segmentsOfRun, string? afterAny, CancellationToken cancellationToken)
+    /// <summary>Submits one segment (intent first, job id after); returns true when its worst case is now committed.</summary>
+    private async Task<bool> Submit(TrackedRun run, MachineProfile profile, double wallHours, double worst, IEnumerable<Segment> segmentsOfRun, string? afterAny, CancellationToken cancellationToken)
     {
         var folder = Folder(run);
         var (checkpoint, skipped) = Checkpoints.NewestValid(folder.CheckpointFiles(), Settings.CheckpointMarker.Length > 0, TimeSpan.FromSeconds(Settings.CheckpointSettleSeconds), _time.GetUtcNow());
@@ -519,6 +533,7 @@ public sealed class Reconciler
         };
 
         // 1. The intent, before the batch system hears of it.
+        var before = (run.State, run.Reason);
         using (var tx = Db.BeginTransaction())
         {
             TrackingStore.Insert(Db, tx, segment);
@@ -544,24 +559,39 @@ public sealed class Reconciler
         try
         {
             id = await Batch(run.Machine).SubmitAsync(request, cancellationToken).ConfigureAwait(false);
+            _answered.Add(run.Machine);
         }
-        catch (BatchSystemException e) when (e.Kind == BatchErrorKind.Permanent)
+        catch (BatchSystemException e) when (e.Kind == BatchErrorKind.Rejected)
         {
+            // The batch system refused this request: the run's fault. Held with the first line; the whole text in the event.
+            _answered.Add(run.Machine);
             using var tx = Db.BeginTransaction();
             TrackingStore.DeleteIntent(Db, tx, segment.Id);
             var from = run.State;
             run.State = RunState.Held.Name();
-            run.Reason = "submission rejected: " + e.Message;
-            Change(tx, run, from, run.Reason);
+            run.Reason = "submission rejected: " + BatchErrorText.FirstLine(e.Message);
+            Change(tx, run, from, "submission rejected: " + e.Message);
             tx.Commit();
             _held++;
-            return;
+            return false;
+        }
+        catch (BatchSystemException e) when (e.Kind == BatchErrorKind.Permanent)
+        {
+            // The machine's fault (its commands or configuration): the run is left as it was before this cycle.
+            using var tx = Db.BeginTransaction();
+            TrackingStore.DeleteIntent(Db, tx, segment.Id);
+            var from = run.State;
+            (run.State, run.Reason) = (before.State, before.Reason);
+            TrackingStore.Save(Db, tx, run, from, $"{run.Machine} unreachable: segment {number} not submitted; left as it was", Now);
+            tx.Commit();
+            MachineFault(run.Machine, $"submitting {name}", e);
+            return false;
         }
         catch (BatchSystemException e)
         {
             // It may or may not have reached the batch system: the intent stays, and the next cycle looks it up by name.
-            _messages.Add($"{run.RunId}: submission of segment {number} not confirmed ({e.Message}); will look it up by name");
-            return;
+            MachineFault(run.Machine, $"submitting {name} (not confirmed: looked up by name next cycle)", e);
+            return true;
         }
 
         // 2. The job id, after.
@@ -575,6 +605,7 @@ public sealed class Reconciler
         }
 
         _submitted++;
+        return true;
     }
 
     private void Change(SqliteTransaction tx, TrackedRun run, string from, string why)
@@ -586,5 +617,4 @@ public sealed class Reconciler
         }
     }
 
-    private static string Show(double value) => Math.Round(value).ToString("N0", CultureInfo.InvariantCulture);
 }

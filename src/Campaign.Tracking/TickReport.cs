@@ -1,6 +1,6 @@
 namespace Campaign.Tracking;
 
-/// <summary>What one reconcile cycle did.</summary>
+/// <summary>What one reconcile cycle did; <c>Unreachable</c> lists the machines skipped this cycle because their batch system failed.</summary>
 public sealed record TickReport(
     int Submitted,
     int Ended,
@@ -9,4 +9,5 @@ public sealed record TickReport(
     int WaitingBudget,
     int Active,
     IReadOnlyDictionary<string, int> QueriesPerMachine,
-    IReadOnlyList<string> Messages);
+    IReadOnlyList<string> Messages,
+    IReadOnlyList<string>? Unreachable = null);

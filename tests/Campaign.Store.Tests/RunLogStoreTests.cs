@@ -64,7 +64,7 @@ public class RunLogStoreTests
         var cost = data.Select(o => Math.Exp(o.LogLength + o.LogQ + 0.7 * o.Level + 0.1 * random.NextDouble())).ToList();
         var model = CostModelFitter.Fit(data, cost, new CostFitOptions());
         var id = CostModelStore.Save(workspace.Connection, model, FixedTime.Default);
-        var (loadedId, at, loaded) = CostModelStore.Latest(workspace.Connection)!.Value;
+        var (loadedId, at, loaded, _, _) = CostModelStore.Latest(workspace.Connection)!;
         Assert.Equal(id, loadedId);
         Assert.Equal("2027-03-01T12:00:00.0000000+00:00", at);
         Assert.Equal(model.Coefficients, loaded.Coefficients);

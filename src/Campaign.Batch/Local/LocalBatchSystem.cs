@@ -35,7 +35,7 @@ public sealed class LocalBatchSystem : IBatchSystem
         request.Validate();
         if (request.Cores > _options.Cores)
         {
-            throw new BatchSystemException(BatchErrorKind.Permanent, $"the job needs {request.Cores} cores; the local runner has {_options.Cores}");
+            throw new BatchSystemException(BatchErrorKind.Rejected, $"the job needs {request.Cores} cores; the local runner has {_options.Cores}");
         }
 
         string id;

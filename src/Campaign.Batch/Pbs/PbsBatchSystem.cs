@@ -126,6 +126,9 @@ public sealed class PbsBatchSystem : IBatchSystem
         var text = (result.StandardError + " " + result.StandardOutput).Trim();
         var transient = new[] { "cannot connect to server", "Connection refused", "timed out", "try again", "communication failure" }
             .Any(m => text.Contains(m, StringComparison.OrdinalIgnoreCase));
-        return new BatchSystemException(transient ? BatchErrorKind.Transient : BatchErrorKind.Permanent, $"{command} exited with {result.ExitCode}: {text}");
+        // qsub's refusals of one job's request (wording from memory of OpenPBS/Torque messages, not checked on a live server).
+        var rejected = !transient && command == "qsub" && new[] { "exceeds", "violates", "Illegal attribute or resource value", "Unknown resource" }
+            .Any(m => text.Contains(m, StringComparison.OrdinalIgnoreCase));
+        return new BatchSystemException(transient ? BatchErrorKind.Transient : rejected ? BatchErrorKind.Rejected : BatchErrorKind.Permanent, $"{command} exited with {result.ExitCode}: {text}");
     }
 }

@@ -11,6 +11,16 @@ namespace Campaign.Batch.Slurm;
 /// </summary>
 public sealed class SlurmBatchSystem : IBatchSystem
 {
+    /// <summary>
+    /// The controller answered and refused this request (sbatch prints "Batch job submission failed: REASON" for
+    /// a job it rejects). Anything else that is not transient (sbatch missing, its configuration unreadable) is
+    /// the machine's fault.
+    /// </summary>
+    private static readonly string[] RejectionMarks =
+    {
+        "Batch job submission failed",
+    };
+
     private static readonly string[] TransientMarks =
     {
         "Socket timed out", "Unable to contact slurm controller", "Connection refused", "Zero Bytes were transmitted",
@@ -268,6 +278,7 @@ public sealed class SlurmBatchSystem : IBatchSystem
     {
         var text = (result.StandardError + " " + result.StandardOutput).Trim();
         var transient = TransientMarks.Any(m => text.Contains(m, StringComparison.OrdinalIgnoreCase));
-        return new BatchSystemException(transient ? BatchErrorKind.Transient : BatchErrorKind.Permanent, $"{command} exited with {result.ExitCode}: {text}");
+        var rejected = !transient && RejectionMarks.Any(m => text.Contains(m, StringComparison.OrdinalIgnoreCase));
+        return new BatchSystemException(transient ? BatchErrorKind.Transient : rejected ? BatchErrorKind.Rejected : BatchErrorKind.Permanent, $"{command} exited with {result.ExitCode}: {text}");
     }
 }

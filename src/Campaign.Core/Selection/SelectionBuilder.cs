@@ -12,7 +12,7 @@ namespace Campaign.Core.Selection;
 /// <param name="Exclude">Candidate ids never to choose.</param>
 /// <param name="MaxRuns">Most configurations to choose.</param>
 /// <param name="Forced">Configurations already started in the current plan: id to the machine they run on. They are kept, even if excluded.</param>
-/// <param name="Reserved">Budget already committed per machine to started runs that are not in the candidate file.</param>
+/// <param name="Reserved">Budget already gone per machine: spent so far and what the started runs still need (taken off before choosing).</param>
 public sealed record SelectionRequest(
     SelectionObjective Objective,
     double Quantile,
@@ -71,8 +71,8 @@ public static class SelectionBuilder
 
         var reserved = request.Reserved ?? new Dictionary<string, double>();
         var pools = request.Budget is { } budget
-            ? new List<BudgetPool> { new("budget", budget - reserved.Values.Sum()) }
-            : request.Allocations.OrderBy(a => a.Key, StringComparer.Ordinal).Select(a => new BudgetPool(a.Key, a.Value - reserved.GetValueOrDefault(a.Key))).ToList();
+            ? new List<BudgetPool> { new("budget", Math.Max(0, budget - reserved.Values.Sum())) }
+            : request.Allocations.OrderBy(a => a.Key, StringComparer.Ordinal).Select(a => new BudgetPool(a.Key, Math.Max(0, a.Value - reserved.GetValueOrDefault(a.Key)))).ToList();
         if (pools.Count == 0)
         {
             throw new InvalidInputException(new[] { "no budget: expected --budget CORE_HOURS, or [[allocation]] entries in campaign.toml" });

@@ -15,14 +15,16 @@ public enum NextStep
 
 /// <summary>How a segment ended, as the tracker sees it.</summary>
 /// <param name="Ending">"completed", "timed_out", "preempted", "node_failed", "requeued", "failed", "out_of_memory",
-/// "launch_failed", "cancelled", "cancelled_for_stall", "deadline", "vanished".</param>
+/// "launch_failed", "cancelled", "cancelled_for_stall", "deadline", "vanished", or "too_short" (ended by the warning
+/// signal before the code made any progress: the segment did not leave the code time to start).</param>
 /// <param name="ProgressBefore">Simulated time when the segment was submitted.</param>
 /// <param name="ProgressAfter">Simulated time reported now.</param>
 /// <param name="Target">The run's target length.</param>
 /// <param name="DoneMarker">True when the run's done marker exists.</param>
 /// <param name="FailuresWithProgress">Failures in a row so far that still made progress.</param>
 /// <param name="FailuresWithoutProgress">Failures in a row so far without progress.</param>
-public sealed record SegmentEnd(string Ending, double ProgressBefore, double ProgressAfter, double Target, bool DoneMarker, int FailuresWithProgress, int FailuresWithoutProgress);
+/// <param name="ShortSegments">Segments in a row so far that were too short (ended by the warning before any progress).</param>
+public sealed record SegmentEnd(string Ending, double ProgressBefore, double ProgressAfter, double Target, bool DoneMarker, int FailuresWithProgress, int FailuresWithoutProgress, int ShortSegments = 0);
 
 /// <summary>The restart rules (docs/tracking.md), as a pure function.</summary>
 public static class SegmentDecision
@@ -33,6 +35,9 @@ public static class SegmentDecision
         "completed", "timed_out", "preempted", "node_failed", "requeued", "cancelled_for_stall",
     };
 
+    /// <summary>Too-short segments in a row after which a run is held.</summary>
+    public const int ShortSegmentLimit = 5;
+
     /// <summary>Decides the next step and the failure counters after it.</summary>
     public static (NextStep Step, string Why, int FailuresWithProgress, int FailuresWithoutProgress) Decide(SegmentEnd end, TrackingSettings settings)
     {
@@ -42,6 +47,14 @@ public static class SegmentDecision
         }
 
         var progressed = end.ProgressAfter > end.ProgressBefore;
+        if (end.Ending == "too_short" && !progressed)
+        {
+            var shorts = end.ShortSegments + 1;
+            return shorts >= ShortSegmentLimit
+                ? (NextStep.Hold, $"{shorts} segments in a row ended by the warning signal before the code made progress: too short for it to start (raise segment_minutes or lower warning_seconds)", end.FailuresWithProgress, end.FailuresWithoutProgress)
+                : (NextStep.Continue, "segment too short: the warning came before the code made progress; not counted as a failure", end.FailuresWithProgress, end.FailuresWithoutProgress);
+        }
+
         if (Interruptions.Contains(end.Ending))
         {
             if (progressed || end.Ending != "completed")

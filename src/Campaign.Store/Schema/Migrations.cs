@@ -165,6 +165,88 @@ public static class Migrations
         new Migration(6, "rehearsal runs (kept out of the run logs)", """
             ALTER TABLE tracked_runs ADD COLUMN rehearsal INTEGER NOT NULL DEFAULT 0;
             """),
+        new Migration(7, "one campaign state: plan rows per configuration and level, rehearsals apart, machine faults", """
+            PRAGMA defer_foreign_keys = ON;
+
+            CREATE TABLE plan_entries (
+                plan_id        INTEGER NOT NULL REFERENCES plans (id),
+                config_id      TEXT NOT NULL,
+                level          INTEGER NOT NULL,
+                kind           TEXT NOT NULL CHECK (kind IN ('run', 'trials')),
+                machine        TEXT NOT NULL,
+                cores          INTEGER NOT NULL,
+                q              REAL NOT NULL,
+                chi1x          REAL NOT NULL,
+                chi1y          REAL NOT NULL,
+                chi1z          REAL NOT NULL,
+                chi2x          REAL NOT NULL,
+                chi2y          REAL NOT NULL,
+                chi2z          REAL NOT NULL,
+                omega0         REAL NOT NULL,
+                target_length  REAL,
+                length_m       REAL NOT NULL,
+                median         REAL NOT NULL,
+                mean           REAL NOT NULL,
+                low            REAL NOT NULL,
+                high           REAL NOT NULL,
+                wall_hours     REAL NOT NULL,
+                segments       INTEGER NOT NULL,
+                node_hours     REAL NOT NULL,
+                charged        REAL NOT NULL,
+                charged_high   REAL NOT NULL,
+                cost           REAL NOT NULL,
+                checkpoint_gb  REAL NOT NULL,
+                output_gb      REAL NOT NULL,
+                source         TEXT NOT NULL,
+                extrapolation  TEXT NOT NULL,
+                log_se         REAL NOT NULL,
+                dof            REAL NOT NULL,
+                runs           INTEGER NOT NULL,
+                PRIMARY KEY (plan_id, config_id, level, kind)
+            ) STRICT;
+
+            -- Plans saved before this step kept one row per configuration with its levels summed: split them by
+            -- 2^level (the only information there is) and mark them so; their target length is computed at adoption.
+            WITH RECURSIVE split (plan_id, config_id, rest, level) AS (
+                SELECT plan_id, config_id, levels || ';', NULL FROM plan_runs
+                UNION ALL
+                SELECT plan_id, config_id, substr(rest, instr(rest, ';') + 1), CAST(substr(rest, 1, instr(rest, ';') - 1) AS INTEGER)
+                FROM split WHERE rest <> ''
+            ),
+            levels AS (SELECT plan_id, config_id, level FROM split WHERE level IS NOT NULL),
+            weights AS (SELECT plan_id, config_id, SUM(1 << level) AS total FROM levels GROUP BY plan_id, config_id)
+            INSERT INTO plan_entries (plan_id, config_id, level, kind, machine, cores, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0,
+                target_length, length_m, median, mean, low, high, wall_hours, segments, node_hours, charged, charged_high, cost,
+                checkpoint_gb, output_gb, source, extrapolation, log_se, dof, runs)
+            SELECT p.plan_id, p.config_id, l.level, 'run', p.machine, p.cores, p.q, p.chi1x, p.chi1y, p.chi1z, p.chi2x, p.chi2y, p.chi2z, p.omega0,
+                NULL, 0, p.median * (1 << l.level) / w.total, p.median * (1 << l.level) / w.total, p.median * (1 << l.level) / w.total,
+                p.high * (1 << l.level) / w.total, 0, 0, 0, p.median * (1 << l.level) / w.total, p.high * (1 << l.level) / w.total,
+                p.cost * (1 << l.level) / w.total, 0, 0, 'migrated', '', 0, 1e308, 1
+            FROM plan_runs p JOIN levels l USING (plan_id, config_id) JOIN weights w USING (plan_id, config_id);
+            DROP TABLE plan_runs;
+
+            ALTER TABLE plans ADD COLUMN carried_json TEXT NOT NULL DEFAULT '[]';
+            ALTER TABLE plans ADD COLUMN reserved_json TEXT NOT NULL DEFAULT '{}';
+
+            -- A rehearsal is its own kind of run with its own id, so a real run of the same configuration and level
+            -- can be tracked beside it. Job names already given to the batch systems stay as they were.
+            UPDATE tracked_runs SET run_id = run_id || '.r1' WHERE rehearsal = 1;
+            UPDATE segments SET run_id = run_id || '.r1' WHERE run_id IN (SELECT substr(run_id, 1, length(run_id) - 3) FROM tracked_runs WHERE rehearsal = 1);
+            UPDATE run_events SET run_id = run_id || '.r1' WHERE run_id IN (SELECT substr(run_id, 1, length(run_id) - 3) FROM tracked_runs WHERE rehearsal = 1);
+
+            CREATE TABLE machine_faults (
+                machine  TEXT PRIMARY KEY NOT NULL,
+                since    TEXT NOT NULL,
+                last_at  TEXT NOT NULL,
+                message  TEXT NOT NULL
+            ) STRICT;
+
+            ALTER TABLE cost_models ADD COLUMN length_json TEXT;
+            ALTER TABLE cost_models ADD COLUMN storage_json TEXT;
+
+            -- Segments that ended by the warning signal before the code made any progress, in a row (too short, not failures).
+            ALTER TABLE tracked_runs ADD COLUMN short_segments INTEGER NOT NULL DEFAULT 0;
+            """),
     };
 
     /// <summary>Schema version this build writes.</summary>

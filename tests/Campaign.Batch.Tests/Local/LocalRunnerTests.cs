@@ -137,7 +137,7 @@ public sealed class LocalRunnerTests : IDisposable
         var runner = LocalRunner.Create(State, cores: 2);
         Assert.Equal(JobState.Missing, (await runner.QueryAsync(new[] { "42" }, CancellationToken.None))["42"].State);
         var error = await Assert.ThrowsAsync<BatchSystemException>(() => runner.SubmitAsync(Request("big", "exit 0", cores: 3), CancellationToken.None));
-        Assert.Equal(BatchErrorKind.Permanent, error.Kind);
+        Assert.Equal(BatchErrorKind.Rejected, error.Kind);
         Assert.Equal("the job needs 3 cores; the local runner has 2", error.Message);
     }
 }

@@ -113,7 +113,8 @@ public class SlurmParserTests
     [Theory]
     [InlineData("slurm_load_jobs error: Unable to contact slurm controller (connect failure)", BatchErrorKind.Transient)]
     [InlineData("sbatch: error: Batch job submission failed: Socket timed out on send/recv operation", BatchErrorKind.Transient)]
-    [InlineData("sbatch: error: Batch job submission failed: Invalid account or account/partition combination specified", BatchErrorKind.Permanent)]
+    [InlineData("sbatch: error: Batch job submission failed: Invalid account or account/partition combination specified", BatchErrorKind.Rejected)]
+    [InlineData("sbatch: error: s_p_parse_file: unable to read \"/etc/slurm/slurm.conf\": No such file or directory", BatchErrorKind.Permanent)]
     public void Command_errors_are_classified(string stderr, BatchErrorKind kind)
     {
         Assert.Equal(kind, SlurmBatchSystem.Classify("sbatch", new CommandResult(1, "", stderr)).Kind);

@@ -109,7 +109,7 @@ internal sealed class FaultInjector
                     faults.Injected["permanent"] = faults.Injected.GetValueOrDefault("permanent") + 1;
                 }
 
-                throw new BatchSystemException(BatchErrorKind.Permanent, "sbatch: error: Batch job submission failed: Invalid account or account/partition combination specified");
+                throw new BatchSystemException(BatchErrorKind.Rejected, "sbatch: error: Batch job submission failed: Invalid account or account/partition combination specified");
             }
 
             return faults.Call(t => inner.SubmitAsync(request, t), cancellationToken, submission: true);

@@ -1,18 +1,36 @@
 using System.Globalization;
 using Microsoft.Data.Sqlite;
 
-namespace Campaign.Cli.Output;
+namespace Campaign.App.Workspaces;
 
 /// <summary>
 /// Plain words for storage failures: a full disk, a read-only file system, a folder without write permission.
 /// SQLite applies a change in one transaction or not at all, so each message can say that nothing was half-written.
 /// </summary>
-internal static class StorageProblem
+public static class StorageProblem
 {
+    /// <summary>
+    /// When <paramref name="e"/> is a storage failure (SQLite, a full disk), the message to show and true; the
+    /// front end needs no knowledge of the database to report it.
+    /// </summary>
+    public static bool TryExplain(Exception e, string workspace, out string message)
+    {
+        message = "";
+        if (e is SqliteException || (e is IOException io && IsDiskFull(io)))
+        {
+            message = Explain(e, workspace);
+            return true;
+        }
+
+        return false;
+    }
+
     private const int DiskFullErrno = 28; // ENOSPC
 
+    /// <summary>True when the error is a full disk.</summary>
     public static bool IsDiskFull(IOException e) => (e.HResult & 0xFFFF) == DiskFullErrno || e.Message.Contains("No space left", StringComparison.OrdinalIgnoreCase);
 
+    /// <summary>Plain words for a storage failure.</summary>
     public static string Explain(Exception e, string workspace)
     {
         var free = FreeBytes(workspace);

@@ -1,0 +1,154 @@
+using Campaign.Core.Campaign;
+using Campaign.Core.CostModel;
+using Campaign.Core.Domain;
+using Campaign.Core.Selection;
+using Campaign.Store;
+
+namespace Campaign.App.Plans;
+
+/// <summary>What to select, and whether to save it as the plan.</summary>
+/// <param name="Workspace">Workspace folder.</param>
+/// <param name="Path">Candidate file.</param>
+/// <param name="Shown">Its name as the user gave it.</param>
+/// <param name="Objective">Coverage or value.</param>
+/// <param name="Budget">One budget for all machines (charged core-hours, the whole campaign's), or null for the allocations.</param>
+/// <param name="Quantile">Cost quantile charged against the budget.</param>
+/// <param name="Exclude">Candidate ids never to choose.</param>
+/// <param name="MaxRuns">Most configurations to choose.</param>
+/// <param name="EccentricityTrials">Trial runs per configuration included in its cost.</param>
+/// <param name="EccentricityTrialLength">Simulated length of each trial (M).</param>
+/// <param name="LeftOut">How many of the best left-out candidates to report.</param>
+/// <param name="Save">Store the selection as a new plan version.</param>
+public sealed record SelectRequest(
+    string Workspace,
+    string Path,
+    string Shown,
+    SelectionObjective Objective,
+    double? Budget,
+    double Quantile,
+    IReadOnlyList<string> Exclude,
+    int? MaxRuns,
+    int EccentricityTrials,
+    double EccentricityTrialLength,
+    int LeftOut,
+    bool Save);
+
+/// <summary>A selection and, when saved, the plan it became.</summary>
+/// <param name="Request">The selection request as the selector saw it.</param>
+/// <param name="Built">The problem and its candidates.</param>
+/// <param name="Result">The chosen set with its bound.</param>
+/// <param name="Report">Chosen runs, budget use, best left out.</param>
+/// <param name="Existing">Configurations that already count as covered (completed logs and carried runs).</param>
+/// <param name="Carried">Configurations kept because they had started, with what they still need.</param>
+/// <param name="Reserved">Charged core-hours taken off each budget before choosing: spent plus what the started runs still need.</param>
+/// <param name="PlanId">The new plan's version, when saved.</param>
+public sealed record SelectResult(
+    SelectionRequest Request,
+    BuiltSelection Built,
+    SelectionResult Result,
+    SelectionReport Report,
+    int Existing,
+    IReadOnlyList<CarriedConfiguration> Carried,
+    IReadOnlyDictionary<string, double> Reserved,
+    long? PlanId);
+
+/// <summary>
+/// Choosing what to run within the budget, and saving it as the plan. A re-plan keeps every configuration that has
+/// started (at what it still needs), takes what was spent off the budget, and says what it carried over.
+/// </summary>
+public sealed class PlanService
+{
+    private readonly TimeProvider _time;
+
+    /// <summary>Creates the service.</summary>
+    public PlanService(TimeProvider time) => _time = time;
+
+    /// <summary>Selects from the candidate file; with <see cref="SelectRequest.Save"/>, stores the plan.</summary>
+    public SelectResult Select(SelectRequest request, IProgress<double>? progress = null)
+    {
+        using var workspace = Workspace.Open(request.Workspace, _time);
+        var config = workspace.Config;
+        var candidates = CampaignInputs.Candidates(workspace, request.Path, request.Shown);
+        var inputs = CampaignInputs.Load(workspace);
+        var snapshot = CampaignSnapshot.Load(workspace);
+
+        var carried = Carry(snapshot);
+        var carriedIds = carried.Select(c => c.ConfigId).ToHashSet(StringComparer.Ordinal);
+        var allocations = CampaignInputs.Allocations(workspace);
+        var reserved = Reserved(snapshot, carried, allocations.Keys, request.Budget is not null, workspace.Machines.Keys);
+        var existing = inputs.Logs.Where(l => l.Outcome == RunOutcome.Completed).Select(l => l.Configuration)
+            .Concat(snapshot.Standing.EntriesOf(carriedIds).Select(e => e.Configuration))
+            .Distinct()
+            .ToList();
+        var selection = new SelectionRequest(
+            request.Objective,
+            request.Quantile,
+            request.Budget,
+            allocations,
+            request.Exclude.Where(id => !carriedIds.Contains(id)).ToHashSet(StringComparer.Ordinal),
+            request.MaxRuns is { } cap ? Math.Max(1, cap - carried.Count) : null,
+            new Dictionary<string, string>(),
+            reserved);
+        var estimateOptions = new EstimateOptions { EccentricityTrials = request.EccentricityTrials, EccentricityTrialLength = request.EccentricityTrialLength };
+        var open = candidates.Where(c => !carriedIds.Contains(c.Id)).ToList();
+        var built = SelectionBuilder.Build(open, workspace.Machines, inputs.Model?.Model, inputs.Storage, config.Length, estimateOptions, config.Selection, existing, selection);
+        var result = Selector.Solve(built.Problem, progress);
+        var report = SelectionReport.Of(built.Problem, result, request.LeftOut);
+        long? planId = null;
+        if (request.Save)
+        {
+            var entries = Chosen(built, result, request.Quantile).Concat(snapshot.Standing.EntriesOf(carriedIds)).ToList();
+            var draft = new PlanDraft(request.Objective.ToString().ToLowerInvariant(), request.Quantile, result.Objective, result.UpperBound, result.Method, request.Shown, entries, carried, reserved, report.Pools);
+            planId = PlanStore.Save(workspace.Connection, draft, _time);
+        }
+
+        return new SelectResult(selection, built, result, report, existing.Count, carried, reserved, planId);
+    }
+
+    /// <summary>The chosen configurations as plan rows: one per level (and the trials), with their estimate.</summary>
+    private static IEnumerable<PlanEntry> Chosen(BuiltSelection built, SelectionResult result, double quantile)
+    {
+        foreach (var a in result.Chosen)
+        {
+            var entry = built.Entries[a.Candidate];
+            foreach (var row in entry.OptionRows[a.Option])
+            {
+                var estimate = row with { Id = entry.Candidate.Id };
+                yield return new PlanEntry(entry.Candidate.Spec.Configuration, estimate, row.ChargedAt(quantile), row.Kind == "ecc" ? null : row.LengthM);
+            }
+        }
+    }
+
+    /// <summary>The started configurations, with what each still needs: at least what its open segments have committed.</summary>
+    private static IReadOnlyList<CarriedConfiguration> Carry(CampaignSnapshot snapshot)
+    {
+        var committed = snapshot.CommittedByRun();
+        return snapshot.Standing.Started()
+            .Select(c => c with
+            {
+                RemainingCost = snapshot.Standing.Runs.Where(r => r.Entry.ConfigId == c.ConfigId)
+                    .Sum(r => Math.Max(r.RemainingCost, r.Run is null ? 0 : committed.GetValueOrDefault(r.Run.RunId))),
+            })
+            .ToList();
+    }
+
+    /// <summary>
+    /// What each budget has already lost: charges so far (within the machine's allocations; all of them for one
+    /// overall budget) plus what the carried configurations still need.
+    /// </summary>
+    private static IReadOnlyDictionary<string, double> Reserved(CampaignSnapshot snapshot, IReadOnlyList<CarriedConfiguration> carried, IEnumerable<string> allocated, bool overall, IEnumerable<string> machines)
+    {
+        var reserved = new Dictionary<string, double>(StringComparer.Ordinal);
+        foreach (var machine in overall ? machines : allocated)
+        {
+            var spent = overall ? snapshot.Ledger.SpentAll(machine) : snapshot.Ledger.SpentInAllocations(machine);
+            var need = carried.Where(c => c.Machine == machine).Sum(c => c.RemainingCost);
+            if (spent + need > 0)
+            {
+                reserved[machine] = spent + need;
+            }
+        }
+
+        return reserved;
+    }
+}

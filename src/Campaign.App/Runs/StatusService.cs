@@ -1,0 +1,80 @@
+using Campaign.Core.Campaign;
+using Campaign.Core.Tracking;
+using Campaign.Store;
+
+namespace Campaign.App.Runs;
+
+/// <summary>One job segment as status shows it.</summary>
+/// <param name="Number">Its number in the run's chain.</param>
+/// <param name="JobId">The batch system's id.</param>
+/// <param name="State">"intent", or the normalised job state.</param>
+/// <param name="NativeState">The batch system's own state.</param>
+/// <param name="ExitCode">Exit code, when ended.</param>
+/// <param name="Signal">Signal, when ended by one.</param>
+/// <param name="ElapsedSeconds">Wall time used.</param>
+/// <param name="ChargedCoreHours">Charge.</param>
+/// <param name="RestartFrom">Checkpoint it restarted from.</param>
+public sealed record SegmentView(long Number, string? JobId, string State, string NativeState, long? ExitCode, long? Signal, double? ElapsedSeconds, double? ChargedCoreHours, string? RestartFrom);
+
+/// <summary>One tracked run as status shows it.</summary>
+/// <param name="Run">The run.</param>
+/// <param name="RateMPerHour">Simulated M per wall hour so far.</param>
+/// <param name="PredictedFinish">When it reaches its target at that rate.</param>
+/// <param name="ChargedCoreHours">Charged so far.</param>
+/// <param name="Segments">Its segments.</param>
+public sealed record RunView(RunRecord Run, double? RateMPerHour, DateTimeOffset? PredictedFinish, double ChargedCoreHours, IReadOnlyList<SegmentView> Segments);
+
+/// <summary>How the plan stands, in counts.</summary>
+/// <param name="PlanId">The current plan.</param>
+/// <param name="ToCome">Plan runs not tracked yet.</param>
+/// <param name="Active">Tracked and being worked on.</param>
+/// <param name="Held">Held for a human.</param>
+/// <param name="Finished">Finished.</param>
+/// <param name="Abandoned">Given up.</param>
+/// <param name="Rehearsals">Rehearsal runs (not plan runs).</param>
+public sealed record PlanSummary(long PlanId, int ToCome, int Active, int Held, int Finished, int Abandoned, int Rehearsals);
+
+/// <summary>The whole status.</summary>
+/// <param name="Runs">Every tracked run.</param>
+/// <param name="Plan">The plan's standing, when there is a plan.</param>
+/// <param name="MachineFaults">Machines whose batch system failed in the latest cycles.</param>
+/// <param name="LastCycle">When the last reconcile cycle ran (what the states are as of), or null.</param>
+/// <param name="Events">Recent run events, newest last.</param>
+public sealed record StatusResult(IReadOnlyList<RunView> Runs, PlanSummary? Plan, IReadOnlyList<MachineFault> MachineFaults, DateTimeOffset? LastCycle, IReadOnlyList<RunEvent> Events);
+
+/// <summary>The campaign's status: runs, plan standing, machines at fault, and how fresh it is.</summary>
+public sealed class StatusService
+{
+    private readonly TimeProvider _time;
+
+    /// <summary>Creates the service.</summary>
+    public StatusService(TimeProvider time) => _time = time;
+
+    /// <summary>Reads the status with the last <paramref name="events"/> run events.</summary>
+    public StatusResult Status(string workspaceRoot, int events)
+    {
+        using var workspace = Workspace.Open(workspaceRoot, _time);
+        var snapshot = CampaignSnapshot.Load(workspace);
+        var segments = TrackingStore.Segments(workspace.Connection).GroupBy(s => s.RunId).ToDictionary(g => g.Key, g => g.OrderBy(s => s.Number).ToList(), StringComparer.Ordinal);
+        var now = _time.GetUtcNow();
+        var views = snapshot.Runs.Select(r =>
+        {
+            var mine = segments.GetValueOrDefault(r.RunId) ?? new List<Segment>();
+            var elapsedHours = mine.Sum(s => s.ElapsedSeconds ?? 0) / 3600;
+            double? rate = elapsedHours > 0 ? r.Progress / elapsedHours : null;
+            DateTimeOffset? finish = rate is > 0 && r.State.IsActive() ? now + TimeSpan.FromHours((r.TargetLength - r.Progress) / rate.Value) : null;
+            var list = mine.Select(s => new SegmentView(s.Number, s.JobId, s.Phase == "intent" ? "intent" : s.JobState, s.NativeState, s.ExitCode, s.Signal, s.ElapsedSeconds, s.ChargedCoreHours, s.RestartFrom)).ToList();
+            return new RunView(r, rate, finish, mine.Sum(s => s.ChargedCoreHours ?? 0), list);
+        }).ToList();
+        PlanSummary? plan = null;
+        if (snapshot.Plan is { } p)
+        {
+            var standing = snapshot.Standing.Runs;
+            int Count(PlanRunStatus status) => standing.Count(s => s.Status == status);
+            plan = new PlanSummary(p.Id, Count(PlanRunStatus.ToCome), Count(PlanRunStatus.Active), Count(PlanRunStatus.Held), Count(PlanRunStatus.Finished), Count(PlanRunStatus.Abandoned), snapshot.Standing.Rehearsals.Count);
+        }
+
+        var recent = events > 0 ? TrackingStore.Events(workspace.Connection).TakeLast(events).ToList() : new List<RunEvent>();
+        return new StatusResult(views, plan, MachineFaultStore.All(workspace.Connection), MachineFaultStore.LastCycle(workspace.Connection), recent);
+    }
+}
