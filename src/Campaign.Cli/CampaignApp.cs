@@ -2,8 +2,7 @@ using System.CommandLine;
 using Campaign.Cli.Commands;
 using Campaign.Cli.Output;
 using Campaign.Core.Domain;
-using Campaign.Store.Schema;
-using Microsoft.Data.Sqlite;
+using Campaign.App.Workspaces;
 
 namespace Campaign.Cli;
 
@@ -102,15 +101,11 @@ public sealed class CampaignApp
             {
                 return Fail(context, ExitCodes.BadInput, "bad_input", e.Problems);
             }
-            catch (SqliteException e)
+            catch (Exception e) when (StorageProblem.TryExplain(e, dir, out var message))
             {
-                return Fail(context, ExitCodes.RuntimeFailure, "runtime_failure", new[] { StorageProblem.Explain(e, dir) });
+                return Fail(context, ExitCodes.RuntimeFailure, "runtime_failure", new[] { message });
             }
-            catch (IOException e) when (StorageProblem.IsDiskFull(e))
-            {
-                return Fail(context, ExitCodes.RuntimeFailure, "runtime_failure", new[] { StorageProblem.Explain(e, dir) });
-            }
-            catch (Exception e) when (e is SchemaTooNewException or IOException or UnauthorizedAccessException or InvalidOperationException)
+            catch (Exception e) when (e is IOException or UnauthorizedAccessException or InvalidOperationException)
             {
                 return Fail(context, ExitCodes.RuntimeFailure, "runtime_failure", new[] { e.Message });
             }

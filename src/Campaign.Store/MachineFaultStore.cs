@@ -1,5 +1,5 @@
 using System.Globalization;
-using Campaign.Core.Campaign;
+using Campaign.Core.Lifecycle;
 using Dapper;
 using Microsoft.Data.Sqlite;
 

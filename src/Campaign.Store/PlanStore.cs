@@ -1,6 +1,6 @@
 using System.Globalization;
 using System.Text.Json;
-using Campaign.Core.Campaign;
+using Campaign.Core.Lifecycle;
 using Campaign.Core.CostModel;
 using Dapper;
 using Microsoft.Data.Sqlite;

@@ -1,5 +1,5 @@
 using System.Globalization;
-using Campaign.Core.Campaign;
+using Campaign.Core.Lifecycle;
 using Campaign.Core.Domain;
 using Campaign.Core.Tracking;
 using Dapper;
@@ -120,8 +120,6 @@ public sealed class Segment
     public string? EndedAt { get; set; }
 }
 
-/// <summary>One state change of a run.</summary>
-public sealed record RunEvent(long Id, string At, string RunId, string FromState, string ToState, string Why);
 
 /// <summary>Reads and writes tracked runs, segments and run events. Callers own the transactions.</summary>
 public static class TrackingStore

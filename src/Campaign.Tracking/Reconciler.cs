@@ -1,6 +1,6 @@
 using System.Globalization;
 using Campaign.Batch;
-using Campaign.Core.Campaign;
+using Campaign.Core.Lifecycle;
 using Campaign.Core.Domain;
 using Campaign.Core.Tracking;
 using Campaign.Store;

@@ -1,5 +1,5 @@
 using System.Globalization;
-using Campaign.Core.Campaign;
+using Campaign.Core.Lifecycle;
 using Campaign.Core.CostModel;
 using Campaign.Core.Domain;
 using Campaign.Core.Forecast;

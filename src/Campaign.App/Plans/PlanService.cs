@@ -1,4 +1,4 @@
-using Campaign.Core.Campaign;
+using Campaign.Core.Lifecycle;
 using Campaign.Core.CostModel;
 using Campaign.Core.Domain;
 using Campaign.Core.Selection;
@@ -62,6 +62,13 @@ public sealed class PlanService
 
     /// <summary>Creates the service.</summary>
     public PlanService(TimeProvider time) => _time = time;
+
+    /// <summary>The current plan, or null.</summary>
+    public PlanVersion? Current(string workspaceRoot)
+    {
+        using var workspace = Workspace.Open(workspaceRoot, _time);
+        return PlanStore.Current(workspace.Connection);
+    }
 
     /// <summary>Selects from the candidate file; with <see cref="SelectRequest.Save"/>, stores the plan.</summary>
     public SelectResult Select(SelectRequest request, IProgress<double>? progress = null)

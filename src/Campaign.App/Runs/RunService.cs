@@ -1,6 +1,6 @@
 using System.Globalization;
 using System.IO.Enumeration;
-using Campaign.Core.Campaign;
+using Campaign.Core.Lifecycle;
 using Campaign.Core.Domain;
 using Campaign.Core.Tracking;
 using Campaign.Store;

@@ -1,4 +1,4 @@
-using Campaign.Core.Campaign;
+using Campaign.Core.Lifecycle;
 using Campaign.Core.Tracking;
 using Campaign.Store;
 

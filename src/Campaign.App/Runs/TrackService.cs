@@ -1,6 +1,6 @@
 using System.Globalization;
 using System.Text.Json;
-using Campaign.Core.Campaign;
+using Campaign.Core.Lifecycle;
 using Campaign.Core.Domain;
 using Campaign.Core.Physics;
 using Campaign.Store;
@@ -19,7 +19,8 @@ public sealed record TrackRequest(string Workspace, string? Machine, int? Cores,
 /// <param name="PlanId">The plan the runs come from.</param>
 /// <param name="Added">Runs added.</param>
 /// <param name="AlreadyTracked">Plan runs asked for that were already tracked (not added again).</param>
-public sealed record TrackResult(long PlanId, IReadOnlyList<RunRecord> Added, IReadOnlyList<string> AlreadyTracked);
+/// <param name="Folders">The run folder of each added run (absolute).</param>
+public sealed record TrackResult(long PlanId, IReadOnlyList<RunRecord> Added, IReadOnlyList<string> AlreadyTracked, IReadOnlyDictionary<string, string> Folders);
 
 /// <summary>Adopting the plan: one tracked run per configuration and level, with a run folder the simulation script reads.</summary>
 public sealed class TrackService
@@ -100,7 +101,7 @@ public sealed class TrackService
         }
 
         tx.Commit();
-        return new TrackResult(plan.Id, added.Select(r => r.ToRecord()).ToList(), already);
+        return new TrackResult(plan.Id, added.Select(r => r.ToRecord()).ToList(), already, added.ToDictionary(r => r.RunId, r => Path.Combine(workspace.Root, r.Folder), StringComparer.Ordinal));
     }
 
     private static string NextRehearsalId(PlanEntry entry, IReadOnlySet<string> known)

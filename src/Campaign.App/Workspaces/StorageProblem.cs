@@ -1,4 +1,5 @@
 using System.Globalization;
+using Campaign.Store.Schema;
 using Microsoft.Data.Sqlite;
 
 namespace Campaign.App.Workspaces;
@@ -16,6 +17,12 @@ public static class StorageProblem
     public static bool TryExplain(Exception e, string workspace, out string message)
     {
         message = "";
+        if (e is SchemaTooNewException)
+        {
+            message = e.Message;
+            return true;
+        }
+
         if (e is SqliteException || (e is IOException io && IsDiskFull(io)))
         {
             message = Explain(e, workspace);

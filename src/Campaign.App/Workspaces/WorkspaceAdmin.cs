@@ -12,6 +12,14 @@ namespace Campaign.App.Workspaces;
 /// <param name="Integrity">SQLite's quick check ("ok").</param>
 public sealed record WorkspaceCheck(string Root, WorkspaceConfig Config, IReadOnlyDictionary<string, MachineProfile> Machines, long SchemaVersion, string Integrity);
 
+/// <summary>What a backup wrote.</summary>
+/// <param name="Workspace">The workspace copied.</param>
+/// <param name="Destination">The backup folder.</param>
+/// <param name="Files">Files copied, relative to the folder.</param>
+/// <param name="DatabaseBytes">Size of the database copy.</param>
+/// <param name="Integrity">Integrity check of the copy ("ok").</param>
+public sealed record BackupSummary(string Workspace, string Destination, IReadOnlyList<string> Files, long DatabaseBytes, string Integrity);
+
 /// <summary>Creating, checking and backing up workspaces; reading their settings without opening the database.</summary>
 public sealed class WorkspaceAdmin
 {
@@ -40,9 +48,10 @@ public sealed class WorkspaceAdmin
     }
 
     /// <summary>A consistent copy of the workspace's database, config and profiles.</summary>
-    public (string Root, BackupResult Result) Backup(string root, string destination)
+    public BackupSummary Backup(string root, string destination)
     {
         using var workspace = Workspace.Open(root, _time);
-        return (workspace.Root, WorkspaceBackup.Write(workspace, destination));
+        var result = WorkspaceBackup.Write(workspace, destination);
+        return new BackupSummary(workspace.Root, result.Destination, result.Files, result.DatabaseBytes, result.Integrity);
     }
 }

@@ -1,6 +1,6 @@
 using System.CommandLine;
 using Campaign.Cli.Output;
-using Campaign.Store;
+using Campaign.App.Workspaces;
 
 namespace Campaign.Cli.Commands;
 
@@ -13,15 +13,14 @@ internal static class BackupCommand
         var command = new Command("backup", "Copy the workspace's database (a consistent snapshot, safe while the daemon runs), config and machine profiles") { destination };
         app.Bind(command, context =>
         {
-            using var workspace = Workspace.Open(context.Workspace, context.Time);
-            var result = WorkspaceBackup.Write(workspace, app.Resolve(context.Parse.GetValue(destination)!));
+            var result = new WorkspaceAdmin(context.Time).Backup(context.Workspace, app.Resolve(context.Parse.GetValue(destination)!));
             if (context.Json)
             {
-                Json.Write(context.Out, result);
+                Json.Write(context.Out, new { result.Destination, result.Files, result.DatabaseBytes, result.Integrity });
             }
             else
             {
-                context.Out.WriteLine($"Backup of {workspace.Root} in {result.Destination}: {string.Join(", ", result.Files)}; database {Format.Integer(result.DatabaseBytes)} bytes, integrity {result.Integrity}.");
+                context.Out.WriteLine($"Backup of {result.Workspace} in {result.Destination}: {string.Join(", ", result.Files)}; database {Format.Integer(result.DatabaseBytes)} bytes, integrity {result.Integrity}.");
                 context.Out.WriteLine("Run folders (checkpoints, output) are not in it: keep them on storage your site backs up.");
                 context.Out.WriteLine($"To restore: stop the daemon, then copy the folder's files over the workspace (or use it as the workspace with --dir).");
             }

@@ -1,7 +1,6 @@
 using System.CommandLine;
 using Campaign.Cli.Output;
-using Campaign.Store;
-using Dapper;
+using Campaign.App.Workspaces;
 
 namespace Campaign.Cli.Commands;
 
@@ -13,16 +12,16 @@ internal static class CheckCommand
         var command = new Command("check", "Validate the workspace (config, machine profiles, database) and summarise it");
         app.Bind(command, context =>
         {
-            using var workspace = Workspace.Open(context.Workspace, context.Time);
+            var workspace = new WorkspaceAdmin(context.Time).Check(context.Workspace);
             var config = workspace.Config;
-            var schema = workspace.Connection.ExecuteScalar<long>("PRAGMA user_version");
-            var integrity = workspace.Connection.ExecuteScalar<string>("PRAGMA quick_check") ?? "";
+            var schema = workspace.SchemaVersion;
+            var integrity = workspace.Integrity;
             var allocations = config.Allocations.Select(a => new
             {
                 a.Machine,
                 a.Amount,
                 Unit = a.UnitName,
-                CoreHours = a.CoreHours(workspace.Machine(a.Machine)),
+                CoreHours = a.CoreHours(workspace.Machines[a.Machine]),
                 Start = a.Start.ToString("yyyy-MM-dd", System.Globalization.CultureInfo.InvariantCulture),
                 End = a.End.ToString("yyyy-MM-dd", System.Globalization.CultureInfo.InvariantCulture),
                 Windows = a.Windows.Select(w => new

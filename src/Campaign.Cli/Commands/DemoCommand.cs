@@ -1,11 +1,19 @@
 using System.CommandLine;
 using System.Globalization;
 using System.Text.Json;
+using Campaign.App.Estimates;
+using Campaign.App.Forecasts;
+using Campaign.App.Logs;
+using Campaign.App.Models;
+using Campaign.App.Plans;
+using Campaign.App.Reports;
+using Campaign.App.Runs;
+using Campaign.App.Workspaces;
 using Campaign.Cli.Output;
+using Campaign.Core.Lifecycle;
 using Campaign.Core.CostModel;
 using Campaign.Core.Domain;
 using Campaign.Core.Selection;
-using Campaign.Store;
 
 namespace Campaign.Cli.Commands;
 
@@ -17,22 +25,14 @@ namespace Campaign.Cli.Commands;
 /// </summary>
 internal static class DemoCommand
 {
-    private static void RunNested(CampaignApp app, CommandContext context, CommandContext step, string[] args)
-    {
-        var code = app.With(step.Out, context.Err).Run(step.Json ? args.Append("--json").ToArray() : args);
-        if (code != ExitCodes.Ok)
-        {
-            throw new InvalidOperationException($"demo step 'campaign {string.Join(' ', args.Skip(2))}' failed with exit code {code}");
-        }
-    }
-
     /// <summary>
     /// The configurations the demo rehearses: the plan's lowest, middle and highest mass ratio among the
     /// non-precessing ones, and its first precessing one, so the short run still shows the spread of lengths.
     /// </summary>
-    internal static IReadOnlyList<string> RehearsalSubset(Plan plan)
+    internal static IReadOnlyList<string> RehearsalSubset(PlanVersion plan)
     {
-        var aligned = plan.Runs.Where(r => r.Configuration.IsAligned).OrderBy(r => r.Configuration.Q.Value).ThenBy(r => r.ConfigId, StringComparer.Ordinal).ToList();
+        var configurations = plan.Runs.DistinctBy(r => r.ConfigId).ToList();
+        var aligned = configurations.Where(r => r.Configuration.IsAligned).OrderBy(r => r.Configuration.Q.Value).ThenBy(r => r.ConfigId, StringComparer.Ordinal).ToList();
         var picks = new List<string>();
         foreach (var index in new[] { 0, aligned.Count / 2, aligned.Count - 1 })
         {
@@ -42,7 +42,7 @@ internal static class DemoCommand
             }
         }
 
-        picks.AddRange(plan.Runs.Where(r => !r.Configuration.IsAligned).Select(r => r.ConfigId).Take(1));
+        picks.AddRange(configurations.Where(r => !r.Configuration.IsAligned).Select(r => r.ConfigId).Take(1));
         return picks;
     }
 
@@ -59,7 +59,7 @@ internal static class DemoCommand
                 ? app.Resolve(given)
                 : Path.Combine(Path.GetTempPath(), "campaign-demo-" + context.Time.GetUtcNow().ToString("yyyyMMdd-HHmmss", CultureInfo.InvariantCulture));
             var demo = EmbeddedFiles.Under("demo/");
-            WorkspaceCreator.Create(target, new WorkspaceTemplate(demo["campaign.toml"], EmbeddedFiles.Under("profiles/")), context.Parse.GetValue(force), context.Time);
+            new WorkspaceAdmin(context.Time).Create(target, demo["campaign.toml"], EmbeddedFiles.Under("profiles/"), context.Parse.GetValue(force));
             var candidatesPath = Path.Combine(target, "candidates.csv");
             var logsPath = Path.Combine(target, "run-logs.csv");
             var ownCandidates = context.Parse.GetValue(candidateFile);
@@ -123,33 +123,34 @@ internal static class DemoCommand
             o.WriteLine("  an invented group's config, machine profiles, past runs (run-logs.csv) and planned runs (candidates.csv)");
             o.WriteLine();
 
-            using var workspace = Workspace.Open(target, context.Time);
-            var config = workspace.Config;
+            var (config, machines) = WorkspaceAdmin.Settings(target);
+            var time = context.Time;
             o.WriteLine("== 1. How long must each planned run be? (post-Newtonian inspiral + merger + ringdown)");
-            var lengths = LengthCommand.ForFile(candidatesPath, "candidates.csv", context, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
+            var lengths = LengthCommand.ForFile(candidatesPath, "candidates.csv", context, config.Length, config.Defaults, config.DefaultMachine, machines.Keys.ToList());
             LengthCommand.Write(Step("lengths"), lengths, config.Length);
             Show("lengths", 10, l => l.StartsWith("Lengths", StringComparison.Ordinal) || !l.StartsWith("sm-", StringComparison.Ordinal));
             o.WriteLine();
 
             o.WriteLine("== 2. Import the group's past runs");
-            var (imported, total) = LogsCommand.Import(workspace, logsPath, "run-logs.csv", replace: false, context.Time);
-            o.WriteLine($"run-logs.csv: {imported.Added} runs imported; {total} in the workspace.");
+            var imported = new RunLogService(time).Import(new ImportLogsRequest(target, logsPath, "run-logs.csv", Replace: false));
+            o.WriteLine($"run-logs.csv: {imported.Added} runs imported; {imported.Total} in the workspace.");
             o.WriteLine();
 
             o.WriteLine("== 3. Fit the cost model to them");
-            var (modelId, model) = ModelCommand.FitAndStore(workspace, new CostFitOptions { Robust = true }, context.Time);
-            ModelCommand.Write(Step("model"), modelId, context.Time.GetUtcNow().ToString("O", CultureInfo.InvariantCulture), model);
+            var model = new CostModelService(time).Fit(target, new CostFitOptions { Robust = true });
+            ModelCommand.Write(Step("model"), model.Id, model.FittedAt, model.Model);
             Show("model");
             o.WriteLine();
 
             o.WriteLine("== 4. Estimate the proposal: core-hours, wall time, segments, charges and storage per run and level");
             var estimateOptions = new EstimateOptions { EccentricityTrials = 2 };
-            EstimateCommand.Write(Step("estimate"), workspace, candidatesPath, "candidates.csv", estimateOptions, "table");
+            var estimate = new EstimateService(time).Estimate(new EstimateRequest(target, candidatesPath, "candidates.csv", estimateOptions));
+            EstimateCommand.Write(Step("estimate"), estimate, "candidates.csv", "table");
             Show("estimate", 14, l => l.StartsWith("Core-hours consumed", StringComparison.Ordinal));
             if (!context.Json)
             {
                 var proposal = new StringWriter();
-                EstimateCommand.Write(context with { Out = proposal }, workspace, candidatesPath, "candidates.csv", estimateOptions, "md");
+                EstimateCommand.Write(context with { Out = proposal }, estimate, "candidates.csv", "md");
                 File.WriteAllText(Path.Combine(target, "proposal.md"), proposal.ToString());
                 o.WriteLine($"The proposal table in Markdown: {Path.Combine(target, "proposal.md")}");
             }
@@ -157,39 +158,52 @@ internal static class DemoCommand
             o.WriteLine();
 
             o.WriteLine("== 5. Choose what to run within the allocations (coverage of the parameter space, costs at the 80th percentile) and save the plan");
-            SelectCommand.Run(Step("select"), workspace, candidatesPath, "candidates.csv", new SelectOptions(SelectionObjective.Coverage, null, 0.8, Array.Empty<string>(), null, 2, 1500, 10, Save: true));
+            var selected = new PlanService(time).Select(new SelectRequest(target, candidatesPath, "candidates.csv", SelectionObjective.Coverage, null, 0.8, Array.Empty<string>(), null, 2, 1500, 10, Save: true));
+            SelectCommand.Write(Step("select"), selected);
             Show("select", 16, l => l.StartsWith("budget ", StringComparison.Ordinal));
             o.WriteLine();
 
             o.WriteLine("== 6. Forecast: when will it finish, and will the allocation last?");
-            RunNested(app, context, Step("forecast"), new[] { "--dir", target, "forecast", "--replicas", "1000", "--runs", "5" });
+            ForecastCommand.Write(Step("forecast"), new ForecastService(time).Forecast(new ForecastRequest(target, 1000, 1)), 5);
             Show("forecast");
             o.WriteLine();
 
             if (!context.Parse.GetValue(skipRun))
             {
-                o.WriteLine("== 7. Run part of the plan, scaled down, on this machine's local runner (demo payload; seconds instead of weeks)");
-                var plan = PlanStore.Current(workspace.Connection)!;
+                o.WriteLine("== 7. Rehearse part of the plan, scaled down, on this machine's local runner (demo payload; seconds instead of weeks)");
+                var plan = new PlanService(time).Current(target)!;
                 var chosen = RehearsalSubset(plan);
-                o.WriteLine($"{chosen.Count} of the plan's {plan.Runs.Count} configurations, every level, to keep the demo short: {string.Join(", ", chosen)}.");
-                var trackArgs = new[] { "--dir", target, "track", "--on", "workbench", "--cores", "1", "--rehearsal", "--only", string.Join(',', chosen) };
-                var watchArgs = new[] { "--dir", target, "watch", "--interval", "1", "--until-done" };
-                RunNested(app, context, Step("track"), trackArgs);
+                o.WriteLine($"{chosen.Count} of the plan's {plan.ConfigIds.Count} configurations, every level, to keep the demo short: {string.Join(", ", chosen)}.");
+                o.WriteLine("A rehearsal's runs are its own: the plan's runs stay to do, and the rehearsal's costs stay out of the run logs.");
+                var tracked = new TrackService(time).Track(new TrackRequest(target, "workbench", 1, chosen.ToHashSet(StringComparer.Ordinal), Rehearsal: true));
+                TrackingCommands.WriteTracked(Step("track"), tracked, rehearsal: true);
                 Show("track");
 
                 // One run is made to go bad on purpose (its constraint norm grows exponentially), to show the tracker
                 // holding it with a reason instead of burning more time on it.
-                var unlucky = TrackingStore.Runs(workspace.Connection).Where(r => r.ConfigId == chosen[Math.Min(1, chosen.Count - 1)]).MaxBy(r => r.Level)!;
-                File.WriteAllText(Path.Combine(workspace.Root, unlucky.Folder, "payload.json"), "{\"instability_rate\": 0.02}");
+                var unlucky = tracked.Added.Where(r => r.ConfigId == chosen[Math.Min(1, chosen.Count - 1)]).MaxBy(r => r.Level)!;
+                File.WriteAllText(Path.Combine(tracked.Folders[unlucky.RunId], "payload.json"), "{\"instability_rate\": 0.02}");
                 o.WriteLine($"(The demo payload of {unlucky.RunId} is set to go unstable: watch it being held.)");
-                RunNested(app, context, Step("watch", live: true), watchArgs);
-                RunNested(app, context, Step("status"), new[] { "--dir", target, "status" });
+                var runs = new RunService(time, TrackingCommands.Batch());
+                var log = context.Json ? TextWriter.Null : context.Out;
+                runs.Watch(new WatchRequest(target, 1, UntilDone: true), log.WriteLine, context.Err.WriteLine, CancellationToken.None);
+                TrackingCommands.WriteStatus(Step("status"), new StatusService(time).Status(target, 0));
                 Show("status");
                 o.WriteLine();
             }
 
             o.WriteLine("== 8. The report: plots and tables for the group and the review panel");
-            RunNested(app, context, Step("report"), new[] { "--dir", target, "report", "--out", Path.Combine(target, "report"), "--candidates", candidatesPath });
+            var report = new ReportService(time).Write(new ReportRequest(target, Path.Combine(target, "report"), candidatesPath, "candidates.csv", 1000));
+            var reportStep = Step("report");
+            if (context.Json)
+            {
+                Json.Write(reportStep.Out, new { report.Report, report.Files });
+            }
+            else
+            {
+                reportStep.Out.WriteLine($"Report: {report.Report} ({report.Files.Count - 1} plot files beside it)");
+            }
+
             Show("report");
             o.WriteLine();
 

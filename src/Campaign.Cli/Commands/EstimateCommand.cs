@@ -1,10 +1,8 @@
 using System.CommandLine;
 using System.Globalization;
+using Campaign.App.Estimates;
 using Campaign.Cli.Output;
-using Campaign.Core.Configuration;
 using Campaign.Core.CostModel;
-using Campaign.Core.Domain;
-using Campaign.Store;
 
 namespace Campaign.Cli.Commands;
 
@@ -33,13 +31,6 @@ internal static class EstimateCommand
         app.Bind(command, context =>
         {
             var shown = context.Parse.GetValue(file)!;
-            var path = app.Resolve(shown);
-            if (!File.Exists(path))
-            {
-                throw new InvalidInputException(new[] { $"{shown}: no such file: expected a candidate file (CSV)" });
-            }
-
-            using var workspace = Workspace.Open(context.Workspace, context.Time);
             var options = new EstimateOptions
             {
                 Interval = context.Parse.GetValue(interval),
@@ -49,28 +40,23 @@ internal static class EstimateCommand
                 Samples = context.Parse.GetValue(samples),
                 Seed = context.Parse.GetValue(seed),
             };
-            Write(context, workspace, path, shown, options, context.Parse.GetValue(format)!);
+            var result = new EstimateService(context.Time).Estimate(new EstimateRequest(context.Workspace, app.Resolve(shown), shown, options));
+            Write(context, result, shown, context.Parse.GetValue(format)!);
             return ExitCodes.Ok;
         });
         return command;
     }
 
-    /// <summary>Estimates the candidates of a file with the workspace's model and writes the result in <paramref name="format"/>.</summary>
-    public static void Write(CommandContext context, Workspace workspace, string path, string shown, EstimateOptions options, string format)
+    /// <summary>Writes an estimate in <paramref name="format"/> (table, md or csv; JSON with --json).</summary>
+    public static void Write(CommandContext context, EstimateResult result, string shown, string format)
     {
-        var config = workspace.Config;
-        var candidates = CandidateReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(path), shown), shown, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
-        var latest = CostModelStore.Latest(workspace.Connection);
-        var training = TrainingSet.From(RunLogStore.All(workspace.Connection), workspace.Machines, config.Length);
-        var storage = StorageModel.Fit(training.Lengths);
-        var estimate = ProposalEstimator.Estimate(candidates, workspace.Machines, latest?.Model, storage, config.Length, options);
-        var allocations = config.Allocations.GroupBy(a => a.Machine).ToDictionary(g => g.Key, g => g.Sum(a => a.CoreHours(workspace.Machine(a.Machine))));
+        var (estimate, modelId, storage, allocations) = (result.Estimate, result.ModelId, result.Storage, result.Allocations);
         if (context.Json)
         {
             Json.Write(context.Out, new
             {
                 File = shown,
-                ModelId = latest?.Id,
+                ModelId = modelId,
                 estimate.Interval,
                 estimate.Samples,
                 estimate.Seed,
@@ -90,10 +76,10 @@ internal static class EstimateCommand
                 WriteCsv(context.Out, estimate);
                 break;
             case "md":
-                WriteMarkdown(context.Out, estimate, allocations, latest?.Id, storage);
+                WriteMarkdown(context.Out, estimate, allocations, modelId, storage);
                 break;
             default:
-                WriteTable(context.Out, estimate, allocations, latest?.Id, storage);
+                WriteTable(context.Out, estimate, allocations, modelId, storage);
                 break;
         }
     }

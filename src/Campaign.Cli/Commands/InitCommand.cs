@@ -1,6 +1,6 @@
 using System.CommandLine;
 using Campaign.Cli.Output;
-using Campaign.Store;
+using Campaign.App.Workspaces;
 
 namespace Campaign.Cli.Commands;
 
@@ -15,8 +15,7 @@ internal static class InitCommand
         app.Bind(command, context =>
         {
             var target = context.Parse.GetValue(folder) is { } given ? app.Resolve(given) : context.Workspace;
-            var template = new WorkspaceTemplate(EmbeddedFiles.Read("templates/campaign.toml"), EmbeddedFiles.Under("profiles/"));
-            var written = WorkspaceCreator.Create(target, template, context.Parse.GetValue(force), context.Time).ToList();
+            var written = new WorkspaceAdmin(context.Time).Create(target, EmbeddedFiles.Read("templates/campaign.toml"), EmbeddedFiles.Under("profiles/"), context.Parse.GetValue(force)).ToList();
             TrackingCommands.WriteSegmentScript(target);
             written.Add(Path.Combine(target, "run-segment.sh"));
             if (context.Json)

@@ -3,7 +3,7 @@ using Campaign.Cli.Output;
 using Campaign.Core.Configuration;
 using Campaign.Core.Domain;
 using Campaign.Core.Physics;
-using Campaign.Store;
+using Campaign.App.Workspaces;
 
 namespace Campaign.Cli.Commands;
 
@@ -111,9 +111,9 @@ internal static class LengthCommand
     /// <summary>The workspace's settings when --dir is a workspace, else the built-in defaults and profiles.</summary>
     private static LengthInputs Settings(CommandContext context)
     {
-        if (Workspace.Exists(context.Workspace))
+        if (WorkspaceAdmin.Exists(context.Workspace))
         {
-            var (config, machines) = Workspace.ReadSettings(context.Workspace);
+            var (config, machines) = WorkspaceAdmin.Settings(context.Workspace);
             return new LengthInputs(config.Length, config.Defaults, config.DefaultMachine, machines.Keys.ToList());
         }
 

@@ -1,22 +1,12 @@
 using System.CommandLine;
 using Campaign.Cli.Output;
-using Campaign.Core.Configuration;
-using Campaign.Core.Domain;
-using Campaign.Store;
+using Campaign.App.Logs;
 
 namespace Campaign.Cli.Commands;
 
 /// <summary>campaign logs import FILE [--replace] | campaign logs list: the group's past runs.</summary>
 internal static class LogsCommand
 {
-    /// <summary>Reads, validates and stores a run-log file; returns what was done and the runs now stored.</summary>
-    public static (ImportResult Result, int Total) Import(Workspace workspace, string path, string shown, bool replace, TimeProvider time)
-    {
-        var rows = RunLogReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(path), shown), shown, workspace.Config.Length, workspace.Machines.Keys.ToList());
-        var result = RunLogStore.Import(workspace.Connection, rows, shown, replace, time);
-        return (result, RunLogStore.All(workspace.Connection).Count);
-    }
-
     public static Command Build(CampaignApp app)
     {
         var command = new Command("logs", "The group's past runs: import them from CSV, list them");
@@ -26,15 +16,9 @@ internal static class LogsCommand
         var import = new Command("import", "Import past runs from a CSV file (all or nothing, in one transaction)") { file, replace };
         app.Bind(import, context =>
         {
-            var path = app.Resolve(context.Parse.GetValue(file)!);
             var shown = context.Parse.GetValue(file)!;
-            if (!File.Exists(path))
-            {
-                throw new InvalidInputException(new[] { $"{shown}: no such file: expected a run-log file (CSV)" });
-            }
-
-            using var workspace = Workspace.Open(context.Workspace, context.Time);
-            var (result, total) = Import(workspace, path, shown, context.Parse.GetValue(replace), context.Time);
+            var result = new RunLogService(context.Time).Import(new ImportLogsRequest(context.Workspace, app.Resolve(shown), shown, context.Parse.GetValue(replace)));
+            var total = result.Total;
             if (context.Json)
             {
                 Json.Write(context.Out, new { File = shown, result.Added, result.Replaced, RunsInWorkspace = total });
@@ -52,8 +36,7 @@ internal static class LogsCommand
         var list = new Command("list", "List the stored runs");
         app.Bind(list, context =>
         {
-            using var workspace = Workspace.Open(context.Workspace, context.Time);
-            var logs = RunLogStore.All(workspace.Connection);
+            var logs = new RunLogService(context.Time).List(context.Workspace);
             if (context.Json)
             {
                 Json.Write(context.Out, new

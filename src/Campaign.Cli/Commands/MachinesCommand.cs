@@ -2,7 +2,7 @@ using System.CommandLine;
 using Campaign.Cli.Output;
 using Campaign.Core.Configuration;
 using Campaign.Core.Domain;
-using Campaign.Store;
+using Campaign.App.Workspaces;
 
 namespace Campaign.Cli.Commands;
 
@@ -14,8 +14,8 @@ internal static class MachinesCommand
         var command = new Command("machines", "List the machine profiles of the workspace (the built-in ones outside a workspace)");
         app.Bind(command, context =>
         {
-            var profiles = Workspace.Exists(context.Workspace)
-                ? Workspace.ReadSettings(context.Workspace).Machines.Values.ToList()
+            var profiles = WorkspaceAdmin.Exists(context.Workspace)
+                ? WorkspaceAdmin.Settings(context.Workspace).Machines.Values.ToList()
                 : EmbeddedFiles.Under("profiles/").Select(p => MachineProfileReader.Read(p.Value, p.Key)).ToList();
             Write(context, profiles);
             return ExitCodes.Ok;

@@ -1,21 +1,13 @@
 using System.CommandLine;
 using Campaign.Cli.Output;
+using Campaign.App.Models;
 using Campaign.Core.CostModel;
-using Campaign.Store;
 
 namespace Campaign.Cli.Commands;
 
 /// <summary>campaign model fit | show: fit the cost model to the stored run logs, or show the one in use.</summary>
 internal static class ModelCommand
 {
-    /// <summary>Fits the cost model to the stored runs and stores it; returns its id and the model.</summary>
-    public static (long Id, FittedCostModel Model) FitAndStore(Workspace workspace, CostFitOptions options, TimeProvider time, IProgress<double>? progress = null)
-    {
-        var training = TrainingSet.From(RunLogStore.All(workspace.Connection), workspace.Machines, workspace.Config.Length);
-        var model = CostModelFitter.Fit(training.Observations, training.CoreHours, options, training.Skipped, progress);
-        return (CostModelStore.Save(workspace.Connection, model, time), model);
-    }
-
     public static Command Build(CampaignApp app)
     {
         var command = new Command("model", "The cost model fitted to the group's run logs");
@@ -31,16 +23,14 @@ internal static class ModelCommand
                 throw new Core.Domain.InvalidInputException(new[] { $"--folds = {folding}: expected an integer from 2 to 100" });
             }
 
-            using var workspace = Workspace.Open(context.Workspace, context.Time);
             var options = new CostFitOptions { Robust = context.Parse.GetValue(robust), Folds = folding, Seed = context.Parse.GetValue(seed) };
-            long id;
-            FittedCostModel model;
+            CostModelVersion fitted;
             using (var bar = TerminalProgress.For(context, "fit"))
             {
-                (id, model) = FitAndStore(workspace, options, context.Time, bar);
+                fitted = new CostModelService(context.Time).Fit(context.Workspace, options, bar);
             }
 
-            Write(context, id, context.Time.GetUtcNow().ToString("O", System.Globalization.CultureInfo.InvariantCulture), model);
+            Write(context, fitted.Id, fitted.FittedAt, fitted.Model);
             return ExitCodes.Ok;
         });
         command.Add(fit);
@@ -48,9 +38,7 @@ internal static class ModelCommand
         var show = new Command("show", "Print the diagnostics of the cost model in use");
         app.Bind(show, context =>
         {
-            using var workspace = Workspace.Open(context.Workspace, context.Time);
-            var latest = CostModelStore.Latest(workspace.Connection)
-                ?? throw new Core.Domain.InvalidInputException(new[] { $"{workspace.Root}: no cost model yet: expected 'campaign logs import FILE' then 'campaign model fit'" });
+            var latest = new CostModelService(context.Time).Current(context.Workspace);
             Write(context, latest.Id, latest.FittedAt, latest.Model);
             return ExitCodes.Ok;
         });

@@ -1,10 +1,7 @@
 using System.CommandLine;
+using Campaign.App.Plans;
 using Campaign.Cli.Output;
-using Campaign.Core.Configuration;
-using Campaign.Core.CostModel;
-using Campaign.Core.Domain;
 using Campaign.Core.Selection;
-using Campaign.Store;
 
 namespace Campaign.Cli.Commands;
 
@@ -31,14 +28,10 @@ internal static class SelectCommand
         app.Bind(command, context =>
         {
             var shown = context.Parse.GetValue(file)!;
-            var path = app.Resolve(shown);
-            if (!File.Exists(path))
-            {
-                throw new InvalidInputException(new[] { $"{shown}: no such file: expected a candidate file (CSV)" });
-            }
-
-            using var workspace = Workspace.Open(context.Workspace, context.Time);
-            var options = new SelectOptions(
+            var request = new SelectRequest(
+                context.Workspace,
+                app.Resolve(shown),
+                shown,
                 context.Parse.GetValue(objective) == "value" ? SelectionObjective.Value : SelectionObjective.Coverage,
                 context.Parse.GetValue(budget),
                 context.Parse.GetValue(quantile),
@@ -48,62 +41,22 @@ internal static class SelectCommand
                 context.Parse.GetValue(trialLength),
                 Math.Max(0, context.Parse.GetValue(leftOut)),
                 context.Parse.GetValue(save));
-            Run(context, workspace, path, shown, options);
+            SelectResult result;
+            using (var bar = TerminalProgress.For(context, "select"))
+            {
+                result = new PlanService(context.Time).Select(request, bar);
+            }
+
+            Write(context, result);
             return ExitCodes.Ok;
         });
         return command;
     }
 
-    /// <summary>Selects from a candidate file in a workspace, optionally saves the plan, and writes the result.</summary>
-    public static void Run(CommandContext context, Workspace workspace, string path, string shown, SelectOptions options)
+    /// <summary>Writes a selection (and the plan it was saved as).</summary>
+    public static void Write(CommandContext context, SelectResult selected)
     {
-        var config = workspace.Config;
-        var candidates = CandidateReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(path), shown), shown, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
-        var logs = RunLogStore.All(workspace.Connection);
-        var training = TrainingSet.From(logs, workspace.Machines, config.Length);
-        var existing = logs.Where(l => l.Outcome == RunOutcome.Completed).Select(l => l.Configuration).Distinct().ToList();
-        var plan = PlanStore.Current(workspace.Connection);
-        var started = plan?.Runs.Where(r => r.Status != PlanStore.Planned).ToList() ?? new List<PlannedRun>();
-        var forced = started.ToDictionary(r => r.ConfigId, r => r.Machine);
-        var reserved = started.Where(r => candidates.All(c => c.Id != r.ConfigId)).GroupBy(r => r.Machine).ToDictionary(g => g.Key, g => g.Sum(r => r.Cost));
-        var kind = options.Objective;
-        var request = new SelectionRequest(
-            kind,
-            options.Quantile,
-            options.Budget,
-            config.Allocations.GroupBy(a => a.Machine).ToDictionary(g => g.Key, g => g.Sum(a => a.CoreHours(workspace.Machine(a.Machine)))),
-            options.Exclude.ToHashSet(StringComparer.Ordinal),
-            options.MaxRuns,
-            forced,
-            reserved);
-        var estimateOptions = new EstimateOptions { EccentricityTrials = options.EccentricityTrials, EccentricityTrialLength = options.EccentricityTrialLength };
-        var built = SelectionBuilder.Build(candidates, workspace.Machines, CostModelStore.Latest(workspace.Connection)?.Model, StorageModel.Fit(training.Lengths), config.Length, estimateOptions, config.Selection, existing, request);
-        SelectionResult result;
-        using (var bar = TerminalProgress.For(context, "select"))
-        {
-            result = Selector.Solve(built.Problem, bar);
-        }
-
-        var report = SelectionReport.Of(built.Problem, result, options.LeftOut);
-        long? planId = null;
-        var carried = 0;
-        if (options.Save)
-        {
-            var runs = result.Chosen.Select(a =>
-            {
-                var entry = built.Entries[a.Candidate];
-                var option = built.Problem.Candidates[a.Candidate].Options[a.Option];
-                var spec = entry.Candidate.Spec;
-                return new PlannedRun(entry.Candidate.Id, option.Machine, spec.Configuration, spec.Levels, spec.Cores, option.Cost, option.Median, option.High, PlanStore.Planned);
-            }).ToList();
-            (planId, carried) = PlanStore.Save(workspace.Connection, kind.ToString().ToLowerInvariant(), request.Quantile, result, runs, report.Pools, shown, context.Time);
-        }
-
-        Write(context, kind, request, built, result, report, existing.Count, planId, carried);
-    }
-
-    private static void Write(CommandContext context, SelectionObjective kind, SelectionRequest request, BuiltSelection built, SelectionResult result, SelectionReport report, int existing, long? planId, int carried)
-    {
+        var (kind, request, built, result, report, existing, planId) = (selected.Request.Objective, selected.Request, selected.Built, selected.Result, selected.Report, selected.Existing, selected.PlanId);
         var totalCost = report.Chosen.Sum(c => c.Cost);
         var totalBudget = report.Pools.Sum(p => p.Capacity);
         if (context.Json)
@@ -129,14 +82,15 @@ internal static class SelectCommand
                 LeftOut = report.LeftOut.Select(l => new { l.Id, l.Machine, l.Cost, l.Gain, CostPerGain = double.IsInfinity(l.CostPerGain) ? (double?)null : l.CostPerGain, l.Reason }),
                 Dropped = built.Dropped.Select(d => new { d.Id, d.Reason }),
                 PlanId = planId,
-                CarriedOver = carried,
+                CarriedOver = selected.Carried.Select(c => new { c.ConfigId, c.Machine, c.RemainingCost, c.Why }),
+                Reserved = selected.Reserved,
             });
             return;
         }
 
         var o = context.Out;
         var what = kind == SelectionObjective.Coverage
-            ? $"coverage of the {built.Problem.Candidates.Count} candidates (with {existing} completed runs already in the workspace)"
+            ? $"coverage of the {built.Problem.Candidates.Count} candidates (with {existing} configurations already covered: completed runs and started ones)"
             : "the sum of the value column";
         o.WriteLine($"Selection maximising {what}; costs are charged core-hours at the {Format.Fixed(request.Quantile * 100, 0)}th percentile of each configuration (all its levels).");
         var table = new TextTable("#", "id", "machine", "cost", "median", "high", "value", kind == SelectionObjective.Coverage ? "coverage gain" : "gain", "");
@@ -176,23 +130,29 @@ internal static class SelectCommand
             o.WriteLine($"Not considered: {id}: {reason}.");
         }
 
+        if (selected.Carried.Count > 0)
+        {
+            o.WriteLine();
+            o.WriteLine($"Kept because they have started ({selected.Carried.Count}; not chosen again, their remaining cost taken off the budget first):");
+            var kept = new TextTable("id", "machine", "still needs core-h", "runs");
+            foreach (var c in selected.Carried)
+            {
+                kept.Add(c.ConfigId, c.Machine, Format.Fixed(c.RemainingCost, 0), c.Why);
+            }
+
+            kept.WriteTo(o);
+        }
+
+        if (selected.Reserved.Count > 0)
+        {
+            o.WriteLine("Taken off the budgets before choosing (spent so far plus what started runs still need): " + string.Join(", ", selected.Reserved.Select(r => $"{r.Key} {Format.Fixed(r.Value, 0)}")) + " core-hours.");
+        }
+
         if (planId is not null)
         {
-            o.WriteLine($"Saved as plan {planId}{(carried > 0 ? $" ({carried} started runs carried over from the previous plan)" : "")}.");
+            o.WriteLine($"Saved as plan {planId}{(selected.Carried.Count > 0 ? $" ({selected.Carried.Count} started configurations carried over: {string.Join(", ", selected.Carried.Select(c => c.ConfigId))})" : "")}.");
         }
 
         o.WriteLine("Costs are statistical estimates; at the median about half the runs will cost more. The site's charging rules and policies decide what is charged.");
     }
 }
-
-/// <summary>What the select command was asked.</summary>
-internal sealed record SelectOptions(
-    SelectionObjective Objective,
-    double? Budget,
-    double Quantile,
-    IReadOnlyList<string> Exclude,
-    int? MaxRuns,
-    int EccentricityTrials,
-    double EccentricityTrialLength,
-    int LeftOut,
-    bool Save);

@@ -1,12 +1,11 @@
 using System.CommandLine;
 using System.Globalization;
 using System.Runtime.InteropServices;
+using Campaign.App.Runs;
 using Campaign.Batch;
-using Campaign.Batch.Resilience;
 using Campaign.Cli.Output;
 using Campaign.Core.Domain;
 using Campaign.Core.Tracking;
-using Campaign.Store;
 using Campaign.Tracking;
 
 namespace Campaign.Cli.Commands;
@@ -35,44 +34,43 @@ internal static class TrackingCommands
         }
     }
 
+    /// <summary>The real batch systems, with this executable hosting the local runner's supervisors.</summary>
+    public static BatchAccess Batch() => BatchAccess.Real(SelfCommand.Supervisor(), SelfCommand.JobEnvironment());
+
     private static Command Track(CampaignApp app)
     {
         var on = new Option<string?>("--on") { Description = "Run every configuration on this machine instead of the plan's assignment (e.g. a workstation)", HelpName = "MACHINE" };
         var cores = new Option<int?>("--cores") { Description = "Cores per job instead of the plan's", HelpName = "N" };
-        var only = new Option<string[]>("--only") { Description = "Only these configuration ids (repeat, or separate with commas)", AllowMultipleArgumentsPerToken = true, HelpName = "ID" };
-        var rehearsal = new Option<bool>("--rehearsal") { Description = "A scaled-down rehearsal: finished runs are not written into the run logs" };
+        var only = new Option<string[]>("--only") { Description = "Only these configuration ids of the plan (repeat, or separate with commas)", AllowMultipleArgumentsPerToken = true, HelpName = "ID" };
+        var rehearsal = new Option<bool>("--rehearsal") { Description = "A rehearsal: runs of their own (ids end .r1, .r2 ...) that never count as plan runs done and never feed the run logs" };
         var command = new Command("track", "Start tracking the runs of the current plan (one run per configuration and level)") { on, cores, only, rehearsal };
         app.Bind(command, context =>
         {
-            using var workspace = Workspace.Open(context.Workspace, context.Time);
-            var plan = PlanStore.Current(workspace.Connection)
-                ?? throw new InvalidInputException(new[] { $"{workspace.Root}: no plan yet: expected 'campaign select FILE --save' first" });
             var ids = context.Parse.GetValue(only) is { Length: > 0 } list ? list.SelectMany(e => e.Split(',', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries)).ToHashSet(StringComparer.Ordinal) : null;
-            var coreCount = context.Parse.GetValue(cores);
-            if (coreCount is < 1)
-            {
-                throw new InvalidInputException(new[] { $"--cores = {coreCount}: expected at least 1" });
-            }
-
-            var added = Adoption.AddFromPlan(workspace, plan, context.Parse.GetValue(on), coreCount, ids, context.Time, context.Parse.GetValue(rehearsal));
-            if (context.Json)
-            {
-                Json.Write(context.Out, new { PlanId = plan.Id, Added = added.Select(r => new { r.RunId, r.Machine, r.Cores, r.TargetLength }) });
-            }
-            else
-            {
-                context.Out.WriteLine($"Tracking {added.Count} new runs from plan {plan.Id}.");
-                foreach (var run in added)
-                {
-                    context.Out.WriteLine($"  {run.RunId} on {run.Machine}, {run.Cores} cores, target {Format.Fixed(run.TargetLength, 0)} M");
-                }
-
-                context.Out.WriteLine("Next: campaign tick (one cycle, e.g. from cron) or campaign watch (a daemon).");
-            }
-
+            var result = new TrackService(context.Time).Track(new TrackRequest(context.Workspace, context.Parse.GetValue(on), context.Parse.GetValue(cores), ids, context.Parse.GetValue(rehearsal)));
+            WriteTracked(context, result, context.Parse.GetValue(rehearsal));
             return ExitCodes.Ok;
         });
         return command;
+    }
+
+    /// <summary>Writes what track added.</summary>
+    public static void WriteTracked(CommandContext context, TrackResult result, bool rehearsal)
+    {
+        if (context.Json)
+        {
+            Json.Write(context.Out, new { result.PlanId, Added = result.Added.Select(r => new { r.RunId, r.Machine, r.Cores, r.TargetLength, r.Rehearsal }), result.AlreadyTracked });
+            return;
+        }
+
+        var kind = rehearsal ? "rehearsal runs" : "new runs";
+        context.Out.WriteLine($"Tracking {result.Added.Count} {kind} from plan {result.PlanId}{(result.AlreadyTracked.Count > 0 ? $" ({result.AlreadyTracked.Count} already tracked)" : "")}.");
+        foreach (var run in result.Added)
+        {
+            context.Out.WriteLine($"  {run.RunId} on {run.Machine}, {run.Cores} cores, target {Format.Fixed(run.TargetLength, 0)} M");
+        }
+
+        context.Out.WriteLine("Next: campaign tick (one cycle, e.g. from cron) or campaign watch (a daemon).");
     }
 
     private static Command Tick(CampaignApp app)
@@ -80,10 +78,16 @@ internal static class TrackingCommands
         var command = new Command("tick", "One reconcile cycle: query the batch systems, record, restart, hold, submit; then exit (for cron)");
         app.Bind(command, context =>
         {
-            using var workspace = Workspace.Open(context.Workspace, context.Time);
-            using var daemonLock = Lock(workspace);
-            var report = Reconciler(workspace, context.Time).TickAsync(CancellationToken.None).GetAwaiter().GetResult();
-            WriteReport(context, report);
+            var report = new RunService(context.Time, Batch()).Cycle(context.Workspace);
+            if (context.Json)
+            {
+                Json.Write(context.Out, report);
+            }
+            else
+            {
+                context.Out.WriteLine(RunService.Summary(report));
+            }
+
             return ExitCodes.Ok;
         });
         return command;
@@ -93,54 +97,18 @@ internal static class TrackingCommands
     {
         var interval = new Option<double?>("--interval") { Description = "Seconds between cycles (default: reconcile_seconds of [tracking])", HelpName = "SECONDS" };
         var untilDone = new Option<bool>("--until-done") { Description = "Stop when no run is active any more" };
-        var command = new Command("watch", "Run the tracking daemon in the foreground (Quartz); stops on SIGTERM or Ctrl-C after the current cycle") { interval, untilDone };
+        var command = new Command("watch", "Run the tracking daemon in the foreground: a reconcile cycle every interval and a daily summary; stops on SIGTERM or Ctrl-C after the current cycle") { interval, untilDone };
         app.Bind(command, context =>
         {
-            using var workspace = Workspace.Open(context.Workspace, context.Time);
-            using var daemonLock = Lock(workspace);
-            var seconds = context.Parse.GetValue(interval) ?? workspace.Config.Tracking.ReconcileSeconds;
-            if (!(seconds >= 0.1 && seconds <= 86_400))
-            {
-                throw new InvalidInputException(new[] { $"--interval = {seconds.ToString(CultureInfo.InvariantCulture)}: expected seconds from 0.1 to 86400" });
-            }
-
             using var stop = new CancellationTokenSource();
             using var term = PosixSignalRegistration.Create(PosixSignal.SIGTERM, c => { c.Cancel = true; stop.Cancel(); });
             using var interrupt = PosixSignalRegistration.Create(PosixSignal.SIGINT, c => { c.Cancel = true; stop.Cancel(); });
-            var reconciler = () => Reconciler(workspace, context.Time);
             var log = context.Json ? TextWriter.Null : context.Out;
-            log.WriteLine($"Watching {workspace.Root} every {seconds.ToString(CultureInfo.InvariantCulture)} s (Ctrl-C or SIGTERM to stop).");
-            WatchHost.RunAsync(
-                workspace.Root,
-                async token =>
-                {
-                    try
-                    {
-                        var report = await reconciler().TickAsync(token).ConfigureAwait(false);
-                        log.WriteLine($"{context.Time.GetUtcNow():HH:mm:ss} {Summary(report)}");
-                        return report;
-                    }
-                    catch (Exception e) when (e is BatchSystemException or IOException or Microsoft.Data.Sqlite.SqliteException or InvalidOperationException)
-                    {
-                        context.Err.WriteLine($"campaign: cycle failed, will try again: {e.Message}");
-                        return new TickReport(0, 0, 0, 0, 0, 1, new Dictionary<string, int>(), new[] { e.Message });
-                    }
-                },
-                token =>
-                {
-                    var runs = TrackingStore.Runs(workspace.Connection);
-                    using var tx = workspace.Connection.BeginTransaction();
-                    EventLog.Append(workspace.Connection, tx, context.Time, "summary", null, string.Join(", ", runs.GroupBy(r => r.State).Select(g => $"{g.Count()} {g.Key}")));
-                    tx.Commit();
-                    return Task.CompletedTask;
-                },
-                TimeSpan.FromSeconds(seconds),
-                context.Parse.GetValue(untilDone),
-                stop.Token).GetAwaiter().GetResult();
+            new RunService(context.Time, Batch()).Watch(new WatchRequest(context.Workspace, context.Parse.GetValue(interval), context.Parse.GetValue(untilDone)), log.WriteLine, context.Err.WriteLine, stop.Token);
             log.WriteLine("Stopped.");
             if (context.Json)
             {
-                WriteStatus(context, workspace, 0);
+                WriteStatus(context, new StatusService(context.Time).Status(context.Workspace, 0));
             }
 
             return ExitCodes.Ok;
@@ -151,17 +119,16 @@ internal static class TrackingCommands
     private static Command Status(CampaignApp app)
     {
         var events = new Option<int>("--events") { Description = "Show this many recent run events too (default 0)" };
-        var command = new Command("status", "Runs with their state, progress, segments, charge and predicted finish") { events };
+        var command = new Command("status", "Runs with their state, progress, segments, charge and predicted finish; the plan's standing and machines at fault") { events };
         app.Bind(command, context =>
         {
-            using var workspace = Workspace.Open(context.Workspace, context.Time);
             var count = context.Parse.GetValue(events);
             if (count < 0)
             {
-                throw new InvalidInputException(new[] { $"--events = {count.ToString(System.Globalization.CultureInfo.InvariantCulture)}: expected 0 or more" });
+                throw new InvalidInputException(new[] { $"--events = {count.ToString(CultureInfo.InvariantCulture)}: expected 0 or more" });
             }
 
-            WriteStatus(context, workspace, count);
+            WriteStatus(context, new StatusService(context.Time).Status(context.Workspace, count));
             return ExitCodes.Ok;
         });
         return command;
@@ -169,155 +136,140 @@ internal static class TrackingCommands
 
     private static Command Release(CampaignApp app)
     {
-        var ids = new Argument<string[]>("RUN") { Description = "Held runs to release", Arity = ArgumentArity.OneOrMore };
-        var command = new Command("release", "Let held runs continue (after a human has looked at them)") { ids };
-        app.Bind(command, context => ChangeState(context, context.Parse.GetValue(ids)!, RunState.Held, RunState.Planned, "released by a human"));
+        var (ids, match, state) = SelectionOptions("Held runs to release");
+        var command = new Command("release", "Let held runs continue (after a human has looked at them): by id, or every held run matching --match / --state") { ids, match, state };
+        app.Bind(command, context =>
+            Write(context, new RunService(context.Time, Batch()).Release(Selection(context, ids, match, state)), "released"));
         return command;
     }
 
     private static Command Abandon(CampaignApp app)
     {
-        var ids = new Argument<string[]>("RUN") { Description = "Runs to give up (their open jobs are cancelled)", Arity = ArgumentArity.OneOrMore };
-        var command = new Command("abandon", "Give up runs: cancel their jobs and mark them failed") { ids };
-        app.Bind(command, context => ChangeState(context, context.Parse.GetValue(ids)!, null, RunState.Failed, "abandoned by a human"));
+        var (ids, match, state) = SelectionOptions("Runs to give up (their open jobs are cancelled)");
+        var command = new Command("abandon", "Give up runs: cancel their jobs and mark them failed; by id, or every run matching --match / --state") { ids, match, state };
+        app.Bind(command, context =>
+            Write(context, new RunService(context.Time, Batch()).Abandon(Selection(context, ids, match, state)), "abandoned"));
         return command;
     }
 
-    private static int ChangeState(CommandContext context, IReadOnlyList<string> ids, RunState? from, RunState to, string why)
+    private static (Argument<string[]> Ids, Option<string?> Match, Option<string?> State) SelectionOptions(string what)
     {
-        using var workspace = Workspace.Open(context.Workspace, context.Time);
-        using var daemonLock = Lock(workspace);
-        var runs = TrackingStore.Runs(workspace.Connection).ToDictionary(r => r.RunId);
-        var problems = ids.Where(id => !runs.ContainsKey(id)).Select(id => $"{id}: no such tracked run: expected one of {string.Join(", ", runs.Keys.Take(10))}").ToList();
-        problems.AddRange(ids.Where(runs.ContainsKey).Where(id => from is not null && runs[id].RunState != from).Select(id => $"{id}: state {runs[id].State}: expected a {from!.Value.Name()} run"));
-        if (problems.Count > 0)
-        {
-            throw new InvalidInputException(problems);
-        }
+        var ids = new Argument<string[]>("RUN") { Description = what, Arity = ArgumentArity.ZeroOrMore };
+        var match = new Option<string?>("--match") { Description = "Every run whose id matches this pattern ('*' any characters, '?' one; quote it)", HelpName = "PATTERN" };
+        var state = new Option<string?>("--state") { Description = "Every run in this state", HelpName = "STATE" };
+        Choices.Restrict(state, Enum.GetValues<RunState>().Select(s => s.Name()).ToArray());
+        return (ids, match, state);
+    }
 
-        var batch = BatchSystemFactory.Create(workspace, SelfCommand.Supervisor(), RetryOptions.Default, context.Time);
-        var at = context.Time.GetUtcNow().ToString("O", CultureInfo.InvariantCulture);
-        foreach (var id in ids)
-        {
-            var run = runs[id];
-            if (to == RunState.Failed)
-            {
-                foreach (var segment in TrackingStore.SegmentsOf(workspace.Connection, id).Where(s => s.Phase == "submitted" && s.JobId is not null))
-                {
-                    batch[run.Machine].CancelAsync(segment.JobId!, CancellationToken.None).GetAwaiter().GetResult();
-                }
-            }
+    private static RunSelection Selection(CommandContext context, Argument<string[]> ids, Option<string?> match, Option<string?> state) =>
+        new(context.Workspace, context.Parse.GetValue(ids) ?? Array.Empty<string>(), context.Parse.GetValue(match), context.Parse.GetValue(state) is { } s ? RunStates.Parse(s) : null);
 
-            using var tx = workspace.Connection.BeginTransaction();
-            var previous = run.State;
-            run.State = to.Name();
-            run.Reason = to == RunState.Failed ? why : "";
-            run.FailuresWithProgress = 0;
-            run.FailuresWithoutProgress = 0;
-            run.StallRestarts = 0;
-            TrackingStore.Save(workspace.Connection, tx, run, previous, why, at);
-            tx.Commit();
-            context.Out.WriteLine(context.Json ? "" : $"{id}: {previous} -> {run.State}");
-        }
-
+    private static int Write(CommandContext context, IReadOnlyList<RunChange> changes, string verb)
+    {
         if (context.Json)
         {
-            Json.Write(context.Out, new { Changed = ids, State = to.Name() });
+            Json.Write(context.Out, new { Changed = changes.Select(c => new { c.RunId, From = c.From.Name(), To = c.To.Name() }) });
+            return ExitCodes.Ok;
         }
 
+        foreach (var c in changes)
+        {
+            context.Out.WriteLine($"{c.RunId}: {c.From.Name()} -> {c.To.Name()}");
+        }
+
+        context.Out.WriteLine($"{changes.Count} runs {verb}.");
         return ExitCodes.Ok;
     }
 
-    private static DaemonLock Lock(Workspace workspace) =>
-        DaemonLock.TryTake(workspace.Root, out var holder)
-        ?? throw new InvalidOperationException($"another campaign daemon or command ({holder}) is acting on {workspace.Root}; only one may act at a time");
-
-    private static Reconciler Reconciler(Workspace workspace, TimeProvider time) =>
-        new(workspace, BatchSystemFactory.Create(workspace, SelfCommand.Supervisor(), RetryOptions.Default, time), time, SelfCommand.JobEnvironment());
-
-    private static string Summary(TickReport r) =>
-        $"{r.Submitted} submitted, {r.Ended} ended, {r.Finished} finished, {r.Held} held, {r.WaitingBudget} waiting for budget, {r.Active} active"
-        + (r.Messages.Count > 0 ? "; " + string.Join("; ", r.Messages) : "");
-
-    private static void WriteReport(CommandContext context, TickReport report)
+    /// <summary>Writes the status.</summary>
+    public static void WriteStatus(CommandContext context, StatusResult status)
     {
-        if (context.Json)
-        {
-            Json.Write(context.Out, report);
-            return;
-        }
-
-        context.Out.WriteLine(Summary(report));
-    }
-
-    private static void WriteStatus(CommandContext context, Workspace workspace, int events)
-    {
-        var runs = TrackingStore.Runs(workspace.Connection);
-        var segments = TrackingStore.Segments(workspace.Connection).GroupBy(s => s.RunId).ToDictionary(g => g.Key, g => g.OrderBy(s => s.Number).ToList());
         var now = context.Time.GetUtcNow();
-        var rows = runs.Select(r =>
-        {
-            var mine = segments.GetValueOrDefault(r.RunId) ?? new List<Segment>();
-            var elapsedHours = mine.Sum(s => s.ElapsedSeconds ?? 0) / 3600 + mine.Where(s => s.Phase == "submitted" && s.JobState == JobState.Running.ToString()).Sum(_ => 0.0);
-            var rate = elapsedHours > 0 ? r.ProgressT / elapsedHours : (double?)null;
-            DateTimeOffset? finish = rate is > 0 && r.RunState.IsActive() ? now + TimeSpan.FromHours((r.TargetLength - r.ProgressT) / rate.Value) : null;
-            return new
-            {
-                Id = r.RunId,
-                State = r.State,
-                r.Reason,
-                r.Machine,
-                r.Cores,
-                Progress = r.ProgressT,
-                Target = r.TargetLength,
-                RateMPerHour = rate,
-                PredictedFinish = finish?.ToString("O", CultureInfo.InvariantCulture),
-                ChargedCoreHours = mine.Sum(s => s.ChargedCoreHours ?? 0),
-                Segments = mine.Select(s => new { s.Number, s.JobId, State = s.Phase == "intent" ? "intent" : s.JobState, s.NativeState, s.ExitCode, s.ElapsedSeconds, s.ChargedCoreHours, s.RestartFrom }).ToList(),
-            };
-        }).ToList();
         if (context.Json)
         {
-            Json.Write(context.Out, new { Runs = rows, Events = events > 0 ? TrackingStore.Events(workspace.Connection).TakeLast(events) : null });
+            Json.Write(context.Out, new
+            {
+                LastCycle = status.LastCycle?.ToString("O", CultureInfo.InvariantCulture),
+                Plan = status.Plan,
+                MachineFaults = status.MachineFaults.Select(f => new { f.Machine, Since = f.Since.ToString("O", CultureInfo.InvariantCulture), LastAt = f.LastAt.ToString("O", CultureInfo.InvariantCulture), f.Message }),
+                Runs = status.Runs.Select(v => new
+                {
+                    Id = v.Run.RunId,
+                    State = v.Run.State.Name(),
+                    v.Run.Reason,
+                    v.Run.Machine,
+                    v.Run.Cores,
+                    v.Run.Rehearsal,
+                    Progress = v.Run.Progress,
+                    Target = v.Run.TargetLength,
+                    v.RateMPerHour,
+                    PredictedFinish = v.PredictedFinish?.ToString("O", CultureInfo.InvariantCulture),
+                    v.ChargedCoreHours,
+                    v.Segments,
+                }),
+                Events = status.Events.Count > 0 ? status.Events : null,
+            });
             return;
         }
 
-        if (rows.Count == 0)
+        var o = context.Out;
+        o.WriteLine(status.LastCycle is { } last
+            ? $"As of the last cycle at {last.ToString("yyyy-MM-dd HH:mm:ss", CultureInfo.InvariantCulture)} UTC ({Ago(now - last)} ago)."
+            : "No cycle has run yet: states are as recorded, not yet checked with any batch system ('campaign tick' or 'campaign watch').");
+        foreach (var f in status.MachineFaults)
         {
-            context.Out.WriteLine("No tracked runs. Save a plan with 'campaign select FILE --save', then 'campaign track'.");
+            o.WriteLine($"Machine {f.Machine} unreachable since {f.Since.ToString("yyyy-MM-dd HH:mm", CultureInfo.InvariantCulture)} UTC (last tried {Ago(now - f.LastAt)} ago): {f.Message}. Its runs are left as they were.");
+        }
+
+        if (status.Plan is { } p)
+        {
+            o.WriteLine($"Plan {p.PlanId}: {p.ToCome} runs to come, {p.Active} active, {p.Held} held, {p.Finished} finished, {p.Abandoned} given up{(p.Rehearsals > 0 ? $"; {p.Rehearsals} rehearsal runs beside it" : "")}.");
+        }
+
+        if (status.Runs.Count == 0)
+        {
+            o.WriteLine("No tracked runs. Save a plan with 'campaign select FILE --save', then 'campaign track'.");
             return;
         }
 
+        o.WriteLine();
         var table = new TextTable("run", "state", "machine", "progress", "t / target M", "segments", "job", "charged core-h", "M per hour", "predicted finish", "reason");
-        foreach (var r in rows)
+        foreach (var v in status.Runs)
         {
-            var fraction = r.Target > 0 ? Math.Clamp(r.Progress / r.Target, 0, 1) : 0;
+            var r = v.Run;
+            var fraction = r.DoneFraction;
             var bar = "[" + new string('#', (int)Math.Round(fraction * 20)).PadRight(20, '.') + "] " + Format.Fixed(fraction * 100, 0).PadLeft(3) + "%";
-            var current = r.Segments.LastOrDefault();
+            var current = v.Segments.LastOrDefault();
             table.Add(
-                r.Id,
-                r.State,
+                r.RunId,
+                r.State.Name(),
                 r.Machine,
                 bar,
-                Format.Fixed(r.Progress, 0) + " / " + Format.Fixed(r.Target, 0),
-                Format.Integer(r.Segments.Count),
+                Format.Fixed(r.Progress, 0) + " / " + Format.Fixed(r.TargetLength, 0),
+                Format.Integer(v.Segments.Count),
                 current is null ? "-" : $"{current.JobId ?? "?"}:{current.State}",
-                Format.Fixed(r.ChargedCoreHours, 1),
-                r.RateMPerHour is { } rate ? Format.Fixed(rate, 0) : "-",
-                r.PredictedFinish is { } f ? DateTimeOffset.Parse(f, CultureInfo.InvariantCulture).ToString("yyyy-MM-dd HH:mm", CultureInfo.InvariantCulture) : "-",
-                r.Reason);
+                Format.Fixed(v.ChargedCoreHours, 1),
+                v.RateMPerHour is { } rate ? Format.Fixed(rate, 0) : "-",
+                v.PredictedFinish is { } f ? f.ToString("yyyy-MM-dd HH:mm", CultureInfo.InvariantCulture) : "-",
+                BatchErrorText.FirstLine(r.Reason));
         }
 
-        table.WriteTo(context.Out);
-        var byState = rows.GroupBy(r => r.State).Select(g => $"{g.Count()} {g.Key}");
-        context.Out.WriteLine($"{rows.Count} runs: {string.Join(", ", byState)}; charged so far {Format.Fixed(rows.Sum(r => r.ChargedCoreHours), 1)} core-hours (as the tool counts it; the site's accounting rules).");
-        if (events > 0)
+        table.WriteTo(o);
+        var byState = status.Runs.GroupBy(r => r.Run.State).Select(g => $"{g.Count()} {g.Key.Name()}");
+        o.WriteLine($"{status.Runs.Count} runs: {string.Join(", ", byState)}; charged so far {Format.Fixed(status.Runs.Sum(r => r.ChargedCoreHours), 1)} core-hours (as the tool counts it; the site's accounting rules).");
+        if (status.Events.Count > 0)
         {
-            context.Out.WriteLine();
-            foreach (var e in TrackingStore.Events(workspace.Connection).TakeLast(events))
+            o.WriteLine();
+            foreach (var e in status.Events)
             {
-                context.Out.WriteLine($"{e.At[..19]}  {e.RunId}  {e.FromState} -> {e.ToState}  {e.Why}");
+                o.WriteLine($"{e.At[..19]}  {e.RunId}  {e.FromState} -> {e.ToState}  {e.Why}");
             }
         }
     }
+
+    private static string Ago(TimeSpan span) =>
+        span.TotalMinutes < 1 ? $"{Format.Fixed(Math.Max(0, span.TotalSeconds), 0)} s"
+        : span.TotalHours < 2 ? $"{Format.Fixed(span.TotalMinutes, 0)} min"
+        : span.TotalDays < 2 ? $"{Format.Fixed(span.TotalHours, 1)} h"
+        : $"{Format.Fixed(span.TotalDays, 1)} days";
 }

@@ -1,7 +1,7 @@
 using Campaign.Core.CostModel;
 using Campaign.Core.Domain;
 
-namespace Campaign.Core.Campaign;
+namespace Campaign.Core.Lifecycle;
 
 /// <summary>What a plan row stands for.</summary>
 public enum PlanEntryKind

@@ -1,7 +1,7 @@
 using System.Globalization;
 using Campaign.Core.Domain;
 
-namespace Campaign.Core.Campaign;
+namespace Campaign.Core.Lifecycle;
 
 /// <summary>The answer of the budget rule for one segment.</summary>
 /// <param name="Allowed">True when the segment may be submitted.</param>

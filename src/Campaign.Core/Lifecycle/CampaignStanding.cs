@@ -1,7 +1,7 @@
 using System.Globalization;
 using Campaign.Core.Tracking;
 
-namespace Campaign.Core.Campaign;
+namespace Campaign.Core.Lifecycle;
 
 /// <summary>Where a plan run stands, derived from the tracked runs (never stored).</summary>
 public enum PlanRunStatus

@@ -1,6 +1,6 @@
 using System.Globalization;
 
-namespace Campaign.Core.Campaign;
+namespace Campaign.Core.Lifecycle;
 
 /// <summary>How tracked runs are named: one id per configuration and level; rehearsals carry their own suffix.</summary>
 public static class RunIds

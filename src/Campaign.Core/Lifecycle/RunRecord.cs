@@ -1,7 +1,7 @@
 using Campaign.Core.Domain;
 using Campaign.Core.Tracking;
 
-namespace Campaign.Core.Campaign;
+namespace Campaign.Core.Lifecycle;
 
 /// <summary>A tracked run as the rest of the campaign sees it (typed: enums and times, mapped once by the store).</summary>
 /// <param name="RunId">Run id.</param>
@@ -61,6 +61,15 @@ public sealed record SegmentCharge(string RunId, string Machine, SegmentPhase Ph
     /// <summary>True until it has ended.</summary>
     public bool IsOpen => Phase != SegmentPhase.Ended;
 }
+
+/// <summary>One state change of a run, as the event log keeps it.</summary>
+/// <param name="Id">Event number.</param>
+/// <param name="At">When (ISO 8601).</param>
+/// <param name="RunId">The run.</param>
+/// <param name="FromState">State before.</param>
+/// <param name="ToState">State after (the same when only something was noted).</param>
+/// <param name="Why">What happened.</param>
+public sealed record RunEvent(long Id, string At, string RunId, string FromState, string ToState, string Why);
 
 /// <summary>A machine whose batch system could not be used, since when, and the first line of what it said.</summary>
 /// <param name="Machine">Machine.</param>
