@@ -87,18 +87,24 @@ public sealed class PlanService
             .Concat(snapshot.Standing.EntriesOf(carriedIds).Select(e => e.Configuration))
             .Distinct()
             .ToList();
+        // Configurations given up (every real run of them abandoned) are not chosen again unless a human tracks them anew.
+        var givenUp = snapshot.Standing.Runs.GroupBy(r => r.Entry.ConfigId, StringComparer.Ordinal)
+            .Where(g => !carriedIds.Contains(g.Key) && g.Any(r => r.Status == PlanRunStatus.Abandoned))
+            .Select(g => g.Key)
+            .ToHashSet(StringComparer.Ordinal);
         var selection = new SelectionRequest(
             request.Objective,
             request.Quantile,
             request.Budget,
             allocations,
-            request.Exclude.Where(id => !carriedIds.Contains(id)).ToHashSet(StringComparer.Ordinal),
+            request.Exclude.Where(id => !carriedIds.Contains(id) && !givenUp.Contains(id)).ToHashSet(StringComparer.Ordinal),
             request.MaxRuns is { } cap ? Math.Max(1, cap - carried.Count) : null,
             new Dictionary<string, string>(),
             reserved);
         var estimateOptions = new EstimateOptions { EccentricityTrials = request.EccentricityTrials, EccentricityTrialLength = request.EccentricityTrialLength };
-        var open = candidates.Where(c => !carriedIds.Contains(c.Id)).ToList();
+        var open = candidates.Where(c => !carriedIds.Contains(c.Id) && !givenUp.Contains(c.Id)).ToList();
         var built = SelectionBuilder.Build(open, workspace.Machines, inputs.Model?.Model, inputs.Storage, config.Length, estimateOptions, config.Selection, existing, selection);
+        built = built with { Dropped = built.Dropped.Concat(candidates.Where(c => givenUp.Contains(c.Id)).Select(c => (c.Id, "given up in this campaign (abandoned)"))).ToList() };
         var result = Selector.Solve(built.Problem, progress);
         var report = SelectionReport.Of(built.Problem, result, request.LeftOut);
         long? planId = null;

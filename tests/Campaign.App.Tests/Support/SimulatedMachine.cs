@@ -1,0 +1,188 @@
+using System.Globalization;
+using Campaign.Batch;
+using Campaign.Core.Domain;
+
+namespace Campaign.App.Tests.Support;
+
+/// <summary>
+/// An in-memory batch system for one machine, on the simulated clock, standing in for a real cluster and a real
+/// simulation code: a job waits in the queue, then runs its run at a fixed pace (M per hour), appending "t" lines
+/// to the run folder's progress file; it checkpoints when its wall time runs out (timed out) and writes the done
+/// marker when the run reaches its target (completed). It can be taken down (every call fails as a broken
+/// machine does) and it keeps its own tally of what it ran, to check the tracker's accounting against.
+/// </summary>
+public sealed class SimulatedMachine : IBatchSystem
+{
+    private readonly TimeProvider _clock;
+    private readonly MachineProfile _profile;
+    private readonly Func<string, double> _hoursToFinish;
+    private readonly TimeSpan _queueWait;
+    private readonly Dictionary<string, Job> _jobs = new(StringComparer.Ordinal);
+    private static int _nextId = 1000;
+
+    public SimulatedMachine(TimeProvider clock, MachineProfile profile, Func<string, double> hoursToFinish, TimeSpan queueWait)
+    {
+        _clock = clock;
+        _profile = profile;
+        _hoursToFinish = hoursToFinish;
+        _queueWait = queueWait;
+    }
+
+    /// <summary>While true every call fails as a machine whose batch commands cannot read their configuration.</summary>
+    public bool Down { get; set; }
+
+    /// <summary>Calls made while down.</summary>
+    public int RefusedCalls { get; private set; }
+
+    /// <summary>Jobs ever submitted, by name.</summary>
+    public IReadOnlyCollection<string> SubmittedNames => _jobs.Values.Select(j => j.Request.Name).ToList();
+
+    /// <summary>What the site would charge for every job that has ended (the machine's own tally).</summary>
+    public double ChargedByTheSite => _jobs.Values.Where(j => j.Final is not null).Sum(j => _profile.ChargedCoreHours(j.Request.Cores, j.Final!.Elapsed!.Value.TotalHours));
+
+    public Task<string> SubmitAsync(JobRequest request, CancellationToken cancellationToken)
+    {
+        Check();
+        var id = Interlocked.Increment(ref _nextId).ToString(CultureInfo.InvariantCulture);
+        _jobs[id] = new Job(id, request, _clock.GetUtcNow());
+        return Task.FromResult(id);
+    }
+
+    public Task<IReadOnlyDictionary<string, JobStatus>> QueryAsync(IReadOnlyCollection<string> jobIds, CancellationToken cancellationToken)
+    {
+        Check();
+        var result = new Dictionary<string, JobStatus>(StringComparer.Ordinal);
+        foreach (var id in jobIds)
+        {
+            result[id] = _jobs.TryGetValue(id, out var job) ? Advance(job) : JobStatus.MissingFor(id);
+        }
+
+        return Task.FromResult<IReadOnlyDictionary<string, JobStatus>>(result);
+    }
+
+    public Task CancelAsync(string jobId, CancellationToken cancellationToken)
+    {
+        Check();
+        if (_jobs.TryGetValue(jobId, out var job) && Advance(job).State is JobState.Pending or JobState.Running)
+        {
+            var ran = job.Started is { } s ? _clock.GetUtcNow() - s : TimeSpan.Zero;
+            job.Final = new JobStatus(job.Id, JobState.Cancelled, "CANCELLED", 0, 15, ran, job.Request.Cores, job.Request.Name);
+        }
+
+        return Task.CompletedTask;
+    }
+
+    public Task<string?> FindAsync(string jobName, CancellationToken cancellationToken)
+    {
+        Check();
+        return Task.FromResult(_jobs.Values.Where(j => j.Request.Name == jobName).Select(j => j.Id).LastOrDefault());
+    }
+
+    private void Check()
+    {
+        if (Down)
+        {
+            RefusedCalls++;
+            throw new BatchSystemException(BatchErrorKind.Permanent, "sbatch: error: s_p_parse_file: unable to read \"/etc/slurm/slurm.conf\": No such file or directory\nsbatch: fatal: Unable to process configuration file");
+        }
+    }
+
+    /// <summary>Moves a job to the clock's now: starts it after the queue wait, runs it, ends it.</summary>
+    private JobStatus Advance(Job job)
+    {
+        if (job.Final is { } final)
+        {
+            return final;
+        }
+
+        var now = _clock.GetUtcNow();
+        var start = job.Submitted + _queueWait;
+        if (now < start)
+        {
+            return new JobStatus(job.Id, JobState.Pending, "PENDING", Name: job.Request.Name);
+        }
+
+        var folder = job.Request.WorkingDirectory;
+        var run = job.Request.Environment["CAMPAIGN_RUN_ID"];
+        if (job.Started is null)
+        {
+            job.Started = start;
+            job.StartT = RestartPoint(job.Request);
+        }
+
+        var target = Target(folder);
+        var pace = target / _hoursToFinish(run); // M per hour
+        var wall = job.Request.WallTime;
+        var toTarget = TimeSpan.FromHours((target - job.StartT) / pace);
+        var ran = now - job.Started.Value;
+        if (ran >= toTarget && toTarget <= wall)
+        {
+            Progress(folder, job, target, job.Started.Value + toTarget);
+            File.WriteAllText(Path.Combine(folder, "DONE"), "");
+            job.Final = new JobStatus(job.Id, JobState.Completed, "COMPLETED", 0, 0, toTarget, job.Request.Cores, job.Request.Name);
+            return job.Final;
+        }
+
+        if (ran >= wall)
+        {
+            var t = job.StartT + wall.TotalHours * pace;
+            Progress(folder, job, t, job.Started.Value + wall);
+            Checkpoint(folder, t);
+            job.Final = new JobStatus(job.Id, JobState.TimedOut, "TIMEOUT", 0, 0, wall, job.Request.Cores, job.Request.Name);
+            return job.Final;
+        }
+
+        Progress(folder, job, job.StartT + ran.TotalHours * pace, now);
+        return new JobStatus(job.Id, JobState.Running, "RUNNING", Elapsed: ran, Name: job.Request.Name);
+    }
+
+    private static double Target(string folder)
+    {
+        var text = File.ReadAllText(Path.Combine(folder, "run.json"));
+        using var json = System.Text.Json.JsonDocument.Parse(text);
+        return json.RootElement.GetProperty("target_length").GetDouble();
+    }
+
+    private static double RestartPoint(JobRequest request) =>
+        request.Environment.TryGetValue("CAMPAIGN_RESTART", out var path) && File.Exists(path)
+            ? double.Parse(File.ReadAllText(path), CultureInfo.InvariantCulture)
+            : 0;
+
+    private static void Progress(string folder, Job job, double t, DateTimeOffset at)
+    {
+        if (t > job.Reported)
+        {
+            File.AppendAllText(Path.Combine(folder, "progress.dat"), t.ToString("R", CultureInfo.InvariantCulture) + "\n");
+            job.Reported = t;
+        }
+
+        _ = at;
+    }
+
+    private void Checkpoint(string folder, double t)
+    {
+        var directory = Path.Combine(folder, "checkpoints");
+        Directory.CreateDirectory(directory);
+        var file = Path.Combine(directory, "ckpt-" + ((long)(t * 1000)).ToString("D12", CultureInfo.InvariantCulture) + ".json");
+        File.WriteAllText(file, t.ToString("R", CultureInfo.InvariantCulture));
+        File.WriteAllText(file + ".ok", "");
+        File.SetLastWriteTimeUtc(file, _clock.GetUtcNow().UtcDateTime);
+    }
+
+    private sealed class Job(string id, JobRequest request, DateTimeOffset submitted)
+    {
+        public string Id { get; } = id;
+
+        public JobRequest Request { get; } = request;
+
+        public DateTimeOffset Submitted { get; } = submitted;
+
+        public DateTimeOffset? Started { get; set; }
+
+        public double StartT { get; set; }
+
+        public double Reported { get; set; } = double.NegativeInfinity;
+
+        public JobStatus? Final { get; set; }
+    }
+}
