@@ -74,23 +74,41 @@ public class SelectCommandTests
     }
 
     [Fact]
-    public void Re_planning_keeps_runs_that_have_started()
+    public void Re_planning_keeps_runs_that_have_started_names_them_and_takes_their_cost_off_the_budget()
     {
         using var folder = Demo(); // the demo saved plan 1
-        var db = Path.Combine(folder.Path, "ws", "campaign.db");
-        using (var connection = new SqliteConnection($"Data Source={db};Pooling=False"))
+        string started;
+        using (var connection = new SqliteConnection($"Data Source={Path.Combine(folder.Path, "ws", "campaign.db")};Pooling=False"))
         {
             connection.Open();
             using var command = connection.CreateCommand();
-            command.CommandText = "UPDATE plan_runs SET status = 'running' WHERE config_id = 'sm-q6-a05'";
-            Assert.Equal(1, command.ExecuteNonQuery());
+            command.CommandText = "SELECT config_id FROM plan_entries WHERE plan_id = 1 AND kind = 'run' ORDER BY config_id LIMIT 1";
+            started = (string)command.ExecuteScalar()!;
         }
 
-        // A new plan that excludes the started run and has little budget still keeps it.
-        var run = CliRun.Of(folder.Path, "--dir", "ws", "select", "ws/candidates.csv", "--budget", "2500000", "--exclude", "sm-q6-a05", "--save", "--json");
-        Assert.Equal(0, run.ExitCode);
+        Assert.Equal(0, CliRun.Live(folder.Path, "--dir", "ws", "track", "--on", "workbench", "--cores", "1", "--only", started).ExitCode);
+        var tick = CliRun.Live(folder.Path, "--dir", "ws", "tick", "--json").Json();
+        Assert.True(tick.GetProperty("submitted").GetInt32() > 0);
+
+        // A new plan that excludes the started configuration and has little budget still keeps it, and says so.
+        var run = CliRun.Of(folder.Path, "--dir", "ws", "select", "ws/candidates.csv", "--budget", "2500000", "--exclude", started, "--save", "--json");
+        Assert.True(run.ExitCode == 0, run.Err);
         var json = run.Json();
-        Assert.Contains("sm-q6-a05", json.GetProperty("selected").EnumerateArray().Select(e => e.GetString()));
         Assert.Equal(2, json.GetProperty("plan_id").GetInt64());
+        var carried = json.GetProperty("carried_over").EnumerateArray().ToList();
+        Assert.Equal(started, Assert.Single(carried).GetProperty("config_id").GetString());
+        Assert.Equal("workbench", carried[0].GetProperty("machine").GetString());
+        var remaining = carried[0].GetProperty("remaining_cost").GetDouble();
+        Assert.True(remaining > 0);
+        Assert.Equal(remaining, json.GetProperty("reserved").EnumerateObject().Sum(p => p.Value.GetDouble()), 6); // nothing charged yet: the reserve is what it still needs
+        Assert.True(json.GetProperty("cost").GetDouble() <= 2_500_000 - remaining + 1e-6);
+        var text = CliRun.Of(folder.Path, "--dir", "ws", "status").Out;
+        Assert.Contains("Plan 2:", text);
+
+        // Tracking the new plan adds the new runs only: the started ones are already there.
+        var track = CliRun.Of(folder.Path, "--dir", "ws", "track", "--json").Json();
+        Assert.NotEmpty(track.GetProperty("already_tracked").EnumerateArray());
+        Assert.DoesNotContain(track.GetProperty("added").EnumerateArray(), a => a.GetProperty("run_id").GetString()!.StartsWith(started + ".", StringComparison.Ordinal));
+        Assert.Equal(0, CliRun.Live(folder.Path, "--dir", "ws", "abandon", "--match", started + ".*").ExitCode);
     }
 }

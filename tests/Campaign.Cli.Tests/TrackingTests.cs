@@ -170,8 +170,8 @@ public sealed class TrackingTests : IDisposable
     {
         Prepare("sm-q1-a00", "\n# (test)\n", rehearsal: true);
         // Runs .L1 stalls at t = 800 M; .L2's constraint norm grows as exp(0.02 t); .L3 is healthy.
-        File.WriteAllText(Ws("runs/sm-q1-a00.L1/payload.json"), "{\"stall_at\": 800}");
-        File.WriteAllText(Ws("runs/sm-q1-a00.L2/payload.json"), "{\"instability_rate\": 0.02}");
+        File.WriteAllText(Ws("runs/sm-q1-a00.L1.r1/payload.json"), "{\"stall_at\": 800}");
+        File.WriteAllText(Ws("runs/sm-q1-a00.L2.r1/payload.json"), "{\"instability_rate\": 0.02}");
         // Long segments (12 s) and a short stall time (0.6 s without new progress), so the stall is seen before a limit.
         var config = File.ReadAllText(Ws("campaign.toml"))
             .Replace("stall_minutes = 0.5", "stall_minutes = 0.01", StringComparison.Ordinal)
@@ -179,21 +179,21 @@ public sealed class TrackingTests : IDisposable
         File.WriteAllText(Ws("campaign.toml"), config);
         TickUntilIdle(TimeSpan.FromSeconds(120));
         var runs = Status().EnumerateArray().ToDictionary(r => r.GetProperty("id").GetString()!);
-        Assert.True(runs["sm-q1-a00.L1"].GetProperty("state").GetString() == "held", runs["sm-q1-a00.L1"].ToString());
-        Assert.True(runs["sm-q1-a00.L2"].GetProperty("state").GetString() == "held", runs["sm-q1-a00.L2"].ToString());
-        Assert.Contains("no progress for", runs["sm-q1-a00.L1"].GetProperty("reason").GetString());
-        Assert.Contains("again after a restart", runs["sm-q1-a00.L1"].GetProperty("reason").GetString());
-        Assert.Equal("held", runs["sm-q1-a00.L2"].GetProperty("state").GetString());
-        Assert.StartsWith("constraint norm growing steadily: rate 0.02 per M", runs["sm-q1-a00.L2"].GetProperty("reason").GetString());
-        Assert.Equal("finished", runs["sm-q1-a00.L3"].GetProperty("state").GetString());
+        Assert.True(runs["sm-q1-a00.L1.r1"].GetProperty("state").GetString() == "held", runs["sm-q1-a00.L1.r1"].ToString());
+        Assert.True(runs["sm-q1-a00.L2.r1"].GetProperty("state").GetString() == "held", runs["sm-q1-a00.L2.r1"].ToString());
+        Assert.Contains("no progress for", runs["sm-q1-a00.L1.r1"].GetProperty("reason").GetString());
+        Assert.Contains("again after a restart", runs["sm-q1-a00.L1.r1"].GetProperty("reason").GetString());
+        Assert.Equal("held", runs["sm-q1-a00.L2.r1"].GetProperty("state").GetString());
+        Assert.StartsWith("constraint norm growing steadily: rate 0.02 per M", runs["sm-q1-a00.L2.r1"].GetProperty("reason").GetString());
+        Assert.Equal("finished", runs["sm-q1-a00.L3.r1"].GetProperty("state").GetString());
         var logged = CliRun.Of(_folder.Path, "--dir", "ws", "logs", "list", "--json").Json().GetProperty("runs").EnumerateArray().Select(r => r.GetProperty("run_id").GetString());
-        Assert.DoesNotContain("sm-q1-a00.L3", logged); // a rehearsal does not teach the cost model
+        Assert.DoesNotContain("sm-q1-a00.L3.r1", logged); // a rehearsal does not teach the cost model
 
         // A human releases the stalled run after fixing it.
-        File.Delete(Ws("runs/sm-q1-a00.L1/payload.json"));
-        Assert.Equal(0, CliRun.Live(_folder.Path, "--dir", "ws", "release", "sm-q1-a00.L1").ExitCode);
+        File.Delete(Ws("runs/sm-q1-a00.L1.r1/payload.json"));
+        Assert.Equal(0, CliRun.Live(_folder.Path, "--dir", "ws", "release", "sm-q1-a00.L1.r1").ExitCode);
         TickUntilIdle(TimeSpan.FromSeconds(60));
-        Assert.Equal("finished", Status().EnumerateArray().Single(r => r.GetProperty("id").GetString() == "sm-q1-a00.L1").GetProperty("state").GetString());
+        Assert.Equal("finished", Status().EnumerateArray().Single(r => r.GetProperty("id").GetString() == "sm-q1-a00.L1.r1").GetProperty("state").GetString());
     }
 
     [Fact]
@@ -246,8 +246,17 @@ public sealed class TrackingTests : IDisposable
         var pieces = RunFolder("pieces");
         for (var i = 0; i < 3; i++)
         {
+            // Signal it once it has made progress (its handler is installed before its first step), however loaded the machine.
+            var progress = Path.Combine(pieces, "progress.dat");
+            var before = File.Exists(progress) ? new FileInfo(progress).Length : 0;
             using var p = Payload(pieces, i == 0 ? null : "newest", 3000);
-            Thread.Sleep(300);
+            var deadline = DateTime.UtcNow.AddSeconds(60);
+            while ((!File.Exists(progress) || new FileInfo(progress).Length <= before) && DateTime.UtcNow < deadline)
+            {
+                Thread.Sleep(20);
+            }
+
+            Thread.Sleep(100);
             Assert.True(Campaign.Batch.Tests.Support.Signals.Send(p.Id, 10)); // SIGUSR1: checkpoint and stop
             p.WaitForExit();
             Assert.Equal(0, p.ExitCode);

@@ -89,9 +89,15 @@ public class WorkspaceCommandTests
         CliRun.Demo(folder.Path, "ws");
         Assert.Equal(0, CliRun.Of(folder.Path, "--dir", "ws", "track", "--on", "workbench", "--cores", "1", "--only", "sm-q1-a00").ExitCode);
         var json = CliRun.Of(folder.Path, "--dir", "ws", "forecast", "--replicas", "200", "--json").Json();
-        Assert.Equal("3 active tracked runs", json.GetProperty("source").GetString());
-        Assert.Equal(1.0, json.GetProperty("probability_fits").GetDouble()); // the workstation has no allocation to exceed
-        Assert.Equal(3, json.GetProperty("runs").GetArrayLength());
+        // The whole rest of the plan: the three tracked runs from their state, every other plan run from its estimate.
+        var plan = CliRun.Of(folder.Path, "--dir", "ws", "status", "--json").Json().GetProperty("plan");
+        var left = plan.GetProperty("to_come").GetInt32() + plan.GetProperty("active").GetInt32() + plan.GetProperty("held").GetInt32();
+        Assert.Equal(3, plan.GetProperty("active").GetInt32());
+        Assert.Equal($"plan 1: {left} runs left (3 tracked, {left - 3} to come; 0 finished)", json.GetProperty("source").GetString());
+        Assert.Equal(left, json.GetProperty("runs_left").GetInt32());
+        Assert.Equal(left, json.GetProperty("runs").GetArrayLength());
+        var workbench = json.GetProperty("runs").EnumerateArray().Where(r => r.GetProperty("machine").GetString() == "workbench").Select(r => r.GetProperty("id").GetString()).Order(StringComparer.Ordinal);
+        Assert.Equal(new[] { "sm-q1-a00.L1", "sm-q1-a00.L2", "sm-q1-a00.L3" }, workbench);
         Assert.Equal(2, CliRun.Of(folder.Path, "--dir", "ws", "forecast", "--replicas", "5").ExitCode);
     }
 

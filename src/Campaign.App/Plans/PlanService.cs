@@ -98,7 +98,7 @@ public sealed class PlanService
             request.Budget,
             allocations,
             request.Exclude.Where(id => !carriedIds.Contains(id) && !givenUp.Contains(id)).ToHashSet(StringComparer.Ordinal),
-            request.MaxRuns is { } cap ? Math.Max(1, cap - carried.Count) : null,
+            request.MaxRuns is { } cap and >= 1 ? Math.Max(1, cap - carried.Count) : request.MaxRuns, // the carried count against the cap; a bad cap is refused by the builder
             new Dictionary<string, string>(),
             reserved);
         var estimateOptions = new EstimateOptions { EccentricityTrials = request.EccentricityTrials, EccentricityTrialLength = request.EccentricityTrialLength };

@@ -34,6 +34,10 @@ internal static class DemoPayload
 
     public static int Run(string folder)
     {
+        // The warning signal first of all: until this runs, the signal's default action would end the process.
+        var stop = 0;
+        using var warn = PosixSignalRegistration.Create((PosixSignal)10, c => { c.Cancel = true; Interlocked.Exchange(ref stop, 1); });
+        using var term = PosixSignalRegistration.Create(PosixSignal.SIGTERM, c => { c.Cancel = true; Interlocked.Exchange(ref stop, 1); });
         var run = JsonSerializer.Deserialize<RunFile>(File.ReadAllText(Path.Combine(folder, "run.json")))!;
         var overrides = File.Exists(Path.Combine(folder, "payload.json"))
             ? JsonSerializer.Deserialize<Dictionary<string, double>>(File.ReadAllText(Path.Combine(folder, "payload.json")))!
@@ -49,9 +53,6 @@ internal static class DemoPayload
         var checkpoints = Path.Combine(folder, "checkpoints");
         Directory.CreateDirectory(checkpoints);
 
-        var stop = 0;
-        using var warn = PosixSignalRegistration.Create((PosixSignal)10, c => { c.Cancel = true; Interlocked.Exchange(ref stop, 1); });
-        using var term = PosixSignalRegistration.Create(PosixSignal.SIGTERM, c => { c.Cancel = true; Interlocked.Exchange(ref stop, 1); });
 
         var state = Start(folder, checkpoints, run.omega0);
         using var progress = new StreamWriter(new FileStream(Path.Combine(folder, "progress.dat"), FileMode.Append, FileAccess.Write, FileShare.ReadWrite)) { AutoFlush = true };

@@ -20,7 +20,7 @@ public sealed class SlurmFaultTests(ITestOutputHelper output) : IDisposable
         if (SlurmCluster.SkipReason is null && _node is not null)
         {
             Run("scontrol", "update", $"NodeName={_node}", "State=RESUME");
-            Run("scancel", "--name", Campaign.Batch.JobName.For("sm-q1-a00.L1", 1));
+            Run("scancel", "--name", Campaign.Batch.JobName.For("sm-q1-a00.L1.r1", 1));
         }
 
         _folder.Dispose();
@@ -57,7 +57,7 @@ public sealed class SlurmFaultTests(ITestOutputHelper output) : IDisposable
     }
 
     private System.Text.Json.JsonElement Run1() =>
-        CliRun.Live(_folder.Path, "--dir", "ws", "status", "--json").Json().GetProperty("runs").EnumerateArray().Single(r => r.GetProperty("id").GetString() == "sm-q1-a00.L1");
+        CliRun.Live(_folder.Path, "--dir", "ws", "status", "--json").Json().GetProperty("runs").EnumerateArray().Single(r => r.GetProperty("id").GetString() == "sm-q1-a00.L1.r1");
 
     private void TickUntil(Func<System.Text.Json.JsonElement, bool> done, TimeSpan limit, string what)
     {
@@ -82,7 +82,7 @@ public sealed class SlurmFaultTests(ITestOutputHelper output) : IDisposable
         using var cluster = SlurmCluster.Use(exclusive: true);
         var state = Path.GetDirectoryName(SlurmCluster.ConfigFile)!;
         var ws = SlurmWorkspace.Create(_folder.Path, warningSeconds: 30, rehearsal: true);
-        File.WriteAllText(Path.Combine(ws, "runs", "sm-q1-a00.L1", "payload.json"), "{\"steps_per_second\": 60, \"checkpoint_every\": 100}");
+        File.WriteAllText(Path.Combine(ws, "runs", "sm-q1-a00.L1.r1", "payload.json"), "{\"steps_per_second\": 60, \"checkpoint_every\": 100}");
         TickUntil(r => r.GetProperty("state").GetString() == "running", TimeSpan.FromSeconds(60), "the first segment to run");
 
         // 1. The controller stops (as for an upgrade or a crash) and comes back a few seconds later with its saved

@@ -153,9 +153,9 @@ public sealed class StorageFaultTests(ITestOutputHelper output) : IDisposable
         Assert.Equal(3, Active()); // submits the first segments
         // Let segment 1 of every run end (3 s wall time, checkpoints every 500 M), then damage L1's newest checkpoint
         // the way a crash in the middle of a write or a bad disk would: truncated, its marker still there.
-        var folder = Ws("runs/sm-q1-a00.L1/checkpoints");
+        var folder = Ws("runs/sm-q1-a00.L1.r1/checkpoints");
         var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(30);
-        var name = Campaign.Batch.JobName.For("sm-q1-a00.L1", 1);
+        var name = Campaign.Batch.JobName.For("sm-q1-a00.L1.r1", 1);
         bool Ended() => Directory.EnumerateFiles(Ws("local-runner"), "request.json", SearchOption.AllDirectories)
             .Any(f => JsonDocument.Parse(File.ReadAllText(f)).RootElement.GetProperty("Name").GetString() == name && File.Exists(Path.Combine(Path.GetDirectoryName(f)!, "exit.json")));
         while (DateTime.UtcNow < deadline && !Ended())
@@ -173,14 +173,14 @@ public sealed class StorageFaultTests(ITestOutputHelper output) : IDisposable
 
         TickUntilIdle(TimeSpan.FromSeconds(120));
         var database = Ws("campaign.db");
-        var restartFrom = (string?)Scalar(database, "SELECT restart_from FROM segments WHERE run_id = 'sm-q1-a00.L1' AND number = 2");
+        var restartFrom = (string?)Scalar(database, "SELECT restart_from FROM segments WHERE run_id = 'sm-q1-a00.L1.r1' AND number = 2");
         Assert.Equal(Path.GetFileName(files[^2]), Path.GetFileName(restartFrom));
-        var why = (string?)Scalar(database, "SELECT why FROM run_events WHERE run_id = 'sm-q1-a00.L1' AND why LIKE '%passed over%' ORDER BY id LIMIT 1");
+        var why = (string?)Scalar(database, "SELECT why FROM run_events WHERE run_id = 'sm-q1-a00.L1.r1' AND why LIKE '%passed over%' ORDER BY id LIMIT 1");
         Assert.NotNull(why);
         Assert.Contains(Path.GetFileName(newest), why, StringComparison.Ordinal);
         Assert.Contains("checksum", why, StringComparison.Ordinal);
         output.WriteLine(why);
-        Assert.Equal("finished", (string?)Scalar(database, "SELECT state FROM tracked_runs WHERE run_id = 'sm-q1-a00.L1'"));
+        Assert.Equal("finished", (string?)Scalar(database, "SELECT state FROM tracked_runs WHERE run_id = 'sm-q1-a00.L1.r1'"));
     }
 
     [Fact]

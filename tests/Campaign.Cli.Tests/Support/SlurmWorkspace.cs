@@ -1,8 +1,8 @@
 namespace Campaign.Cli.Tests.Support;
 
 /// <summary>
-/// The demo workspace with a machine "minislurm" on the test cluster, tracking one run (sm-q1-a00.L1, its other
-/// levels abandoned) with one-minute segments: what the Slurm tracking tests start from.
+/// The demo workspace with a machine "minislurm" on the test cluster, tracking one run (sm-q1-a00.L1, or its rehearsal
+/// sm-q1-a00.L1.r1; its other levels abandoned) with one-minute segments: what the Slurm tracking tests start from.
 /// </summary>
 public static class SlurmWorkspace
 {
@@ -24,7 +24,7 @@ public static class SlurmWorkspace
         Assert.Equal(0, CliRun.Live(folder, rehearsal ? track.Append("--rehearsal").ToArray() : track).ExitCode);
         foreach (var level in new[] { 2, 3 })
         {
-            Assert.Equal(0, CliRun.Live(folder, "--dir", "ws", "abandon", $"sm-q1-a00.L{level}").ExitCode);
+            Assert.Equal(0, CliRun.Live(folder, "--dir", "ws", "abandon", $"sm-q1-a00.L{level}{(rehearsal ? ".r1" : "")}").ExitCode);
         }
 
         return ws;
