@@ -5,9 +5,10 @@ namespace Campaign.Tracking;
 /// <summary>
 /// `campaign watch`: a Quartz scheduler in the foreground with two jobs, a reconcile cycle every N seconds and a
 /// daily summary at 08:00. Jobs never overlap; a trigger that misfires (the machine slept, a cycle ran long)
-/// skips ahead to its next time rather than firing a burst. Quartz keeps its triggers in a persistent store on
-/// SQLite (scheduler.db in the workspace, schema provisioned by Quartz); every fact of the campaign itself is in
-/// campaign.db, written by the cycles. Stops gracefully (the running cycle finishes) when <c>stop</c> is
+/// skips ahead to its next time rather than firing a burst. The triggers live in memory: they are rebuilt at
+/// every start and hold nothing worth keeping (a persistent trigger store was written at every fire, and on a
+/// full disk its write failures stopped the daemon); every fact of the campaign is in campaign.db, written by
+/// the cycles, and a cycle after a restart picks up from there. Stops gracefully (the running cycle finishes) when <c>stop</c> is
 /// cancelled, or, with <c>untilIdle</c>, when a cycle reports no active run.
 /// </summary>
 public static class WatchHost
@@ -17,7 +18,7 @@ public static class WatchHost
     private static Action<TickReport>? _after;
 
     /// <summary>Runs the scheduler until stopped (one watch per process).</summary>
-    public static async Task RunAsync(string workspace, Func<CancellationToken, Task<TickReport>> tick, Func<CancellationToken, Task> summary, TimeSpan interval, bool untilIdle, CancellationToken stop)
+    public static async Task RunAsync(Func<CancellationToken, Task<TickReport>> tick, Func<CancellationToken, Task> summary, TimeSpan interval, bool untilIdle, CancellationToken stop)
     {
         var idle = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
         _tick = tick;
@@ -30,16 +31,10 @@ public static class WatchHost
             }
         };
 
-        Campaign.Store.OwnerOnly.Create(Path.Combine(workspace, "scheduler.db"));
-        var store = "Data Source=" + Path.Combine(workspace, "scheduler.db") + ";Pooling=False";
         var scheduler = await QuartzSchedulerBuilder.Create(q =>
         {
             q.UseDefaultThreadPool(1);
-            q.UsePersistentStore(s =>
-            {
-                s.UseSqlite(store);
-                s.ProvisionSchema();
-            });
+            q.UseInMemoryStore();
         }).BuildScheduler(stop).ConfigureAwait(false);
 
         var reconcile = JobBuilder.Create<ReconcileJob>().WithIdentity("reconcile").StoreDurably().Build();

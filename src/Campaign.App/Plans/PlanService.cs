@@ -103,7 +103,7 @@ public sealed class PlanService
             reserved);
         var estimateOptions = new EstimateOptions { EccentricityTrials = request.EccentricityTrials, EccentricityTrialLength = request.EccentricityTrialLength };
         var open = candidates.Where(c => !carriedIds.Contains(c.Id) && !givenUp.Contains(c.Id)).ToList();
-        var built = SelectionBuilder.Build(open, workspace.Machines, inputs.Model?.Model, inputs.Storage, config.Length, estimateOptions, config.Selection, existing, selection);
+        var built = SelectionBuilder.Build(open, workspace.Machines, inputs.Model?.Model, inputs.Storage, inputs.Length, estimateOptions, config.Selection, existing, selection);
         built = built with { Dropped = built.Dropped.Concat(candidates.Where(c => givenUp.Contains(c.Id)).Select(c => (c.Id, "given up in this campaign (abandoned)"))).ToList() };
         var result = Selector.Solve(built.Problem, progress);
         var report = SelectionReport.Of(built.Problem, result, request.LeftOut);

@@ -68,7 +68,7 @@ public sealed class ReportService
         var proposal = new List<ProposalRow>();
         if (candidates.Count > 0 && (model is not null || candidates.All(c => c.CoreHours is not null)))
         {
-            var estimate = ProposalEstimator.Estimate(candidates, workspace.Machines, model, inputs.Storage, workspace.Config.Length, new EstimateOptions { Samples = 200 });
+            var estimate = ProposalEstimator.Estimate(candidates, workspace.Machines, model, inputs.Storage, inputs.Length, new EstimateOptions { Samples = 200 });
             proposal = estimate.Runs.Select(Row).ToList();
         }
         else if (plan is not null)

@@ -64,7 +64,6 @@ public sealed class RunService
 
         log($"Watching {workspace.Root} every {seconds.ToString(CultureInfo.InvariantCulture)} s (Ctrl-C or SIGTERM to stop).");
         WatchHost.RunAsync(
-            workspace.Root,
             async token =>
             {
                 try

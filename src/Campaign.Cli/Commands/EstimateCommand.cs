@@ -51,6 +51,11 @@ internal static class EstimateCommand
     public static void Write(CommandContext context, EstimateResult result, string shown, string format)
     {
         var (estimate, modelId, storage, allocations) = (result.Estimate, result.ModelId, result.Storage, result.Allocations);
+        foreach (var note in result.Notes)
+        {
+            context.Err.WriteLine("campaign: note: " + note);
+        }
+
         if (context.Json)
         {
             Json.Write(context.Out, new
@@ -65,6 +70,7 @@ internal static class EstimateCommand
                 estimate.Total,
                 estimate.ByMachine,
                 Allocations = allocations,
+                result.Notes,
                 Caution,
             });
             return;

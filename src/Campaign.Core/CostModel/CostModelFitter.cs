@@ -73,7 +73,8 @@ public static class CostModelFitter
             ResidualSd = fit.ResidualSd,
             DegreesOfFreedom = fit.DegreesOfFreedom,
             RSquared = fit.RSquared,
-            Smearing = fit.Residuals.Average(Math.Exp),
+            // Duan's smearing, weighted by the robust weights: runs the fit discounted do not move the mean either.
+            Smearing = Enumerable.Range(0, n).Sum(i => weights[i] * Math.Exp(fit.Residuals[i])) / weights.Sum(),
             RunCount = n,
             RunsSkipped = runsSkipped,
             Robust = options.Robust,

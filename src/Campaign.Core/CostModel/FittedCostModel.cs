@@ -46,7 +46,7 @@ public sealed record FittedCostModel
     /// <summary>R^2 of the final fit.</summary>
     public required double RSquared { get; init; }
 
-    /// <summary>Duan's smearing factor mean(exp(residual)), turning the median into a mean.</summary>
+    /// <summary>Duan's smearing factor mean(exp(residual)) (weighted by the robust weights in a robust fit), turning the median into a mean.</summary>
     public required double Smearing { get; init; }
 
     /// <summary>Runs used in the fit.</summary>

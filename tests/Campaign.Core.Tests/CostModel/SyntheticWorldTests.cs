@@ -119,6 +119,26 @@ public class SyntheticWorldTests
     }
 
     [Fact]
+    public void The_robust_fit_keeps_the_mean_of_a_run_above_its_median_when_cheap_outliers_are_down_weighted()
+    {
+        // Regression (lifecycle issue): Duan's smearing over every residual let runs the robust fit had discounted
+        // drag the per-run mean below the median. One run in five logged at a twentieth of the normal cost.
+        var (data, cost) = World(200, seed: 31);
+        for (var i = 0; i < 40; i++)
+        {
+            cost[i * 5] /= 20;
+        }
+
+        var robust = CostModelFitter.Fit(data, cost, new CostFitOptions { Robust = true });
+        var p = robust.Predict(data[1], 0.9);
+        // A log-normal cost with log-sd sigma has mean = median x exp(sigma^2 / 2) (textbook log-normal moments);
+        // the world's noise is sigma = Sigma, so the bulk's mean/median is exp(Sigma^2 / 2).
+        var expected = Math.Exp(Sigma * Sigma / 2);
+        Assert.True(p.Mean >= p.Median, $"mean {p.Mean} below median {p.Median}");
+        Assert.True(Math.Abs(p.Mean / p.Median - expected) < 0.05, $"mean/median {p.Mean / p.Median:F4}, log-normal bulk {expected:F4}");
+    }
+
+    [Fact]
     public void Cooks_distance_names_an_influential_run()
     {
         var (data, cost) = World(60, seed: 8);
