@@ -105,4 +105,28 @@ public class TrackingRulesTests
         Assert.Equal(100, left);
         Assert.False(BudgetGuard.Allows(100.01, 500, 300, 1000, 100, out _));
     }
+
+    [Fact]
+    public void A_segment_ended_by_the_warning_before_any_progress_is_too_short_not_a_failure_until_it_keeps_happening()
+    {
+        var settings = new TrackingSettings();
+        var end = new SegmentEnd("too_short", 300, 300, 5000, false, 0, 1, 0);
+        var (step, why, withProgress, without) = SegmentDecision.Decide(end, settings);
+        Assert.Equal(NextStep.Continue, step);
+        Assert.Equal((0, 1), (withProgress, without)); // the failure counters are untouched
+        Assert.StartsWith("segment too short", why, StringComparison.Ordinal);
+        var fifth = SegmentDecision.Decide(end with { ShortSegments = SegmentDecision.ShortSegmentLimit - 1 }, settings);
+        Assert.Equal(NextStep.Hold, fifth.Step);
+        Assert.Contains("raise segment_minutes", fifth.Why, StringComparison.Ordinal);
+    }
+
+    [Theory]
+    [InlineData(138, null, true)] // the shell's 128 + 10 for SIGUSR1 (signal(7): USR1 is 10 on Linux x86-64 and arm64)
+    [InlineData(0, 10, true)]
+    [InlineData(0, 0, false)]
+    [InlineData(143, null, false)] // 128 + 15: SIGTERM, not the warning
+    public void A_job_ended_by_the_warning_signal_is_recognised_from_its_exit_or_its_signal(int exit, int? signal, bool expected)
+    {
+        Assert.Equal(expected, Signals.EndedBy(Signals.Number("USR1")!.Value, exit, signal));
+    }
 }
