@@ -197,6 +197,33 @@ public sealed class TrackingTests : IDisposable
     }
 
     [Fact]
+    public void A_segment_the_warning_ends_before_the_code_starts_is_too_short_not_a_failure_and_five_in_a_row_hold_the_run()
+    {
+        // Regression (lifecycle issue): on a loaded machine the warning signal reached the demo payload before it had
+        // installed its handler, and the run was held as failed. Here the code takes 5 s to start and the warning
+        // comes after 2 s, every time.
+        Prepare("sm-q1-a00", rehearsal: true);
+        File.WriteAllText(Ws("slow-start.sh"), "#!/bin/sh\nsleep 5\n");
+        File.SetUnixFileMode(Ws("slow-start.sh"), (UnixFileMode)Convert.ToInt32("755", 8));
+        var config = File.ReadAllText(Ws("campaign.toml")).Replace("script = \"run-segment.sh\"", "script = \"slow-start.sh\"", StringComparison.Ordinal);
+        File.WriteAllText(Ws("campaign.toml"), config);
+        TickUntilIdle(TimeSpan.FromSeconds(150));
+
+        var runs = Status().EnumerateArray().ToList();
+        Assert.Equal(3, runs.Count);
+        foreach (var run in runs)
+        {
+            Assert.Equal("held", run.GetProperty("state").GetString());
+            Assert.StartsWith($"{Campaign.Core.Tracking.SegmentDecision.ShortSegmentLimit} segments in a row ended by the warning signal before the code made progress", run.GetProperty("reason").GetString(), StringComparison.Ordinal);
+            Assert.Equal(Campaign.Core.Tracking.SegmentDecision.ShortSegmentLimit, run.GetProperty("segments").GetArrayLength());
+        }
+
+        var events = CliRun.Live(_folder.Path, "--dir", "ws", "status", "--events", "200", "--json").Json().GetProperty("events").EnumerateArray().Select(e => e.GetProperty("why").GetString()!).ToList();
+        Assert.Equal(3 * (Campaign.Core.Tracking.SegmentDecision.ShortSegmentLimit - 1), events.Count(e => e.Contains("segment too short", StringComparison.Ordinal)));
+        Assert.DoesNotContain(events, e => e.Contains("without progress", StringComparison.Ordinal));
+    }
+
+    [Fact]
     public void The_budget_guard_stops_submission_at_the_line_and_says_which_runs_wait()
     {
         // One segment on the workstation may charge 1 core x 3 s = 1/1200 core-hour; the allocation has room for two.
