@@ -1,4 +1,3 @@
-using System.Text.RegularExpressions;
 using Campaign.App.Forecasts;
 using Campaign.App.Logs;
 using Campaign.App.Models;
@@ -37,16 +36,7 @@ public sealed class SimulatedYearTests : IDisposable
     public SimulatedYearTests(ITestOutputHelper output)
     {
         _output = output;
-        var demo = Path.Combine(RepositoryRoot.Path, "demo-campaign");
-        var config = File.ReadAllText(Path.Combine(demo, "campaign.toml"));
-        // Production-like tracking: segments as long as each machine's wall-time limit, a warning 5 minutes before.
-        config = Regex.Replace(config, @"\[tracking\][\s\S]*$", "[tracking]\nscript = \"run-segment.sh\"\nstall_minutes = 2880\n");
-        var profiles = Directory.GetFiles(Path.Combine(RepositoryRoot.Path, "cluster-profiles"), "*.toml").ToDictionary(f => Path.GetFileName(f), File.ReadAllText);
-        new WorkspaceAdmin(_clock).Create(Ws, config, profiles, force: false);
-        File.Copy(Path.Combine(demo, "run-logs.csv"), Path.Combine(Ws, "run-logs.csv"));
-        File.Copy(Path.Combine(demo, "candidates-small.csv"), Path.Combine(Ws, "candidates.csv"));
-        File.WriteAllText(Path.Combine(Ws, "run-segment.sh"), "#!/bin/sh\n");
-        File.SetUnixFileMode(Path.Combine(Ws, "run-segment.sh"), (UnixFileMode)Convert.ToInt32("755", 8));
+        TestWorkspace.Create(Ws, _clock);
         var (_, machines) = WorkspaceAdmin.Settings(Ws);
         foreach (var profile in machines.Values)
         {

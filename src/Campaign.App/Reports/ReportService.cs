@@ -32,6 +32,14 @@ public sealed class ReportService
     /// <summary>Gathers the data and writes the report.</summary>
     public ReportResult Write(ReportRequest request)
     {
+        var data = Gather(request);
+        var files = ReportWriter.Write(data, request.Folder);
+        return new ReportResult(Path.Combine(request.Folder, "report.html"), files);
+    }
+
+    /// <summary>Everything the report shows, read from the workspace.</summary>
+    internal ReportData Gather(ReportRequest request)
+    {
         if (request.Replicas is < 10 or > 100_000)
         {
             throw new InvalidInputException(new[] { $"--replicas = {request.Replicas.ToString(CultureInfo.InvariantCulture)}: expected an integer from 10 to 100000" });
@@ -101,8 +109,7 @@ public sealed class ReportService
             inputs.Logs.Where(l => l.Outcome == RunOutcome.Completed).Select(l => Point(l.Configuration)).Distinct().ToList(),
             modelCheck,
             proposal);
-        var files = ReportWriter.Write(data, request.Folder);
-        return new ReportResult(Path.Combine(request.Folder, "report.html"), files);
+        return data;
     }
 
     private static ProposalRow Row(EstimateRow r) => new(r.Id + (r.Kind == "ecc" ? " (trials)" : ""), r.Level, r.Machine, r.Median, r.Low, r.High, r.ChargedCoreHours, r.Segments);

@@ -1,0 +1,80 @@
+using Campaign.App.Estimates;
+using Campaign.App.Forecasts;
+using Campaign.App.Logs;
+using Campaign.App.Models;
+using Campaign.App.Plans;
+using Campaign.App.Reports;
+using Campaign.App.Runs;
+using Campaign.App.Tests.Support;
+using Campaign.Core.CostModel;
+using Campaign.Core.Domain;
+using Campaign.Core.Selection;
+
+namespace Campaign.App.Tests;
+
+/// <summary>What a saved plan keeps is what the estimate said: nothing is approximated after the save.</summary>
+public sealed class PlanAndReportTests : IDisposable
+{
+    private readonly TempFolder _folder = new();
+    private readonly SimulatedClock _clock = new(new DateTimeOffset(2027, 2, 1, 8, 0, 0, TimeSpan.Zero));
+
+    public PlanAndReportTests()
+    {
+        TestWorkspace.Create(Ws, _clock);
+        new RunLogService(_clock).Import(new ImportLogsRequest(Ws, Path.Combine(Ws, "run-logs.csv"), "run-logs.csv", false));
+        new CostModelService(_clock).Fit(Ws, new CostFitOptions { Robust = true });
+    }
+
+    private string Ws => Path.Combine(_folder.Path, "ws");
+
+    public void Dispose() => _folder.Dispose();
+
+    [Fact]
+    public void The_reports_proposal_table_without_a_candidate_file_is_the_estimate_of_the_planned_configurations_row_for_row()
+    {
+        new PlanService(_clock).Select(new SelectRequest(Ws, Path.Combine(Ws, "candidates.csv"), "candidates.csv", SelectionObjective.Coverage, null, 0.8, Array.Empty<string>(), null, 2, 1500, 5, Save: true));
+        var plan = new PlanService(_clock).Current(Ws)!;
+        var estimate = new EstimateService(_clock).Estimate(new EstimateRequest(Ws, Path.Combine(Ws, "candidates.csv"), "candidates.csv", new EstimateOptions { EccentricityTrials = 2 }));
+        // estimate shows a candidate on the first machine it lists; select may assign it to another one. Compare
+        // the configurations the plan put on that same machine (most of them).
+        var machineOf = plan.Entries.GroupBy(e => e.ConfigId).ToDictionary(g => g.Key, g => g.First().Machine);
+        var expected = estimate.Estimate.Runs.Where(r => machineOf.TryGetValue(r.Id, out var m) && m == r.Machine)
+            .Select(r => (Id: r.Id + (r.Kind == "ecc" ? " (trials)" : ""), r.Level, r.Machine, r.Median, r.Low, r.High, r.ChargedCoreHours, r.Segments))
+            .OrderBy(r => r.Id, StringComparer.Ordinal).ThenBy(r => r.Level).ToList();
+
+        var data = new ReportService(_clock).Gather(new ReportRequest(Ws, Path.Combine(_folder.Path, "report"), null, null, 50));
+        Assert.Equal(plan.Entries.Count, data.Proposal.Count);
+        var compared = expected.Select(e => e.Id).ToHashSet(StringComparer.Ordinal);
+        var table = data.Proposal.Where(r => compared.Contains(r.Id)).Select(r => (r.Id, r.Level, r.Machine, r.Median, r.Low, r.High, r.Charged, r.Segments))
+            .OrderBy(r => r.Id, StringComparer.Ordinal).ThenBy(r => r.Level).ToList();
+        Assert.True(compared.Count * 2 >= data.Proposal.Select(r => r.Id).Distinct().Count(), $"only {compared.Count} configurations to compare");
+        Assert.Equal(expected.Count, table.Count);
+        for (var i = 0; i < expected.Count; i++)
+        {
+            Assert.Equal((expected[i].Id, expected[i].Level, expected[i].Machine, expected[i].Segments), (table[i].Id, table[i].Level, table[i].Machine, table[i].Segments));
+            Assert.Equal(expected[i].Median, table[i].Median, 9);
+            Assert.Equal(expected[i].Low, table[i].Low, 9);
+            Assert.Equal(expected[i].High, table[i].High, 9);
+            Assert.Equal(expected[i].ChargedCoreHours, table[i].Charged, 9);
+            Assert.True(table[i].Low < table[i].Median && table[i].Median < table[i].High);
+        }
+
+        Assert.Contains(table, r => r.Level == 1);
+        Assert.Contains(table, r => r.Level == 3);
+
+        // The burn-down's plan line and the forecast cover the whole plan before anything is tracked.
+        Assert.All(data.Allocations, a => Assert.Equal(plan.Entries.Where(e => e.Machine == a.Machine).Sum(e => e.Estimate.ChargedCoreHours), a.PlannedCoreHours, 6));
+        var forecast = new ForecastService(_clock).Forecast(new ForecastRequest(Ws, 20, 1));
+        Assert.Equal(plan.Runs.Count(), forecast.RunsLeft);
+        Assert.Equal(plan.Runs.Count(), data.Forecast!.Runs.Count);
+    }
+
+    [Fact]
+    public void Tracking_only_configurations_of_the_plan_is_allowed_and_an_unknown_one_is_refused_naming_the_plan()
+    {
+        new PlanService(_clock).Select(new SelectRequest(Ws, Path.Combine(Ws, "candidates.csv"), "candidates.csv", SelectionObjective.Coverage, null, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
+        var error = Assert.Throws<InvalidInputException>(() => new TrackService(_clock).Track(new TrackRequest(Ws, null, null, new[] { "no-such-config" }, false)));
+        Assert.StartsWith("--only no-such-config: not a configuration of plan 1: expected one of ", Assert.Single(error.Problems), StringComparison.Ordinal);
+        Assert.Empty(new StatusService(_clock).Status(Ws, 0).Runs); // nothing was changed
+    }
+}
