@@ -126,7 +126,7 @@ internal static class DemoCommand
             var (config, machines) = WorkspaceAdmin.Settings(target);
             var time = context.Time;
             o.WriteLine("== 1. How long must each planned run be? (post-Newtonian inspiral + merger + ringdown)");
-            var lengths = LengthCommand.ForFile(candidatesPath, "candidates.csv", context, config.Length, config.Defaults, config.DefaultMachine, machines.Keys.ToList());
+            var lengths = LengthCommand.ForFile(candidatesPath, "candidates.csv", config.Length, config.Defaults, config.DefaultMachine, machines.Keys.ToList());
             LengthCommand.Write(Step("lengths"), lengths, config.Length);
             Show("lengths", 10, l => l.StartsWith("Lengths", StringComparison.Ordinal) || !l.StartsWith("sm-", StringComparison.Ordinal));
             o.WriteLine();

@@ -3,6 +3,7 @@ using Campaign.Cli.Output;
 using Campaign.Core.Configuration;
 using Campaign.Core.Domain;
 using Campaign.Core.Physics;
+using Campaign.App.Lengths;
 using Campaign.App.Workspaces;
 
 namespace Campaign.Cli.Commands;
@@ -38,7 +39,7 @@ internal static class LengthCommand
                     throw new UsageException("--candidates reads every configuration from the file: give it without --q, --chi*, --omega0 or --orbits");
                 }
 
-                var rows = ForFile(app.Resolve(file), file, context, settings.Length, settings.Defaults, settings.DefaultMachine, settings.Machines);
+                var rows = ForFile(app.Resolve(file), file, settings.Length, settings.Defaults, settings.DefaultMachine, settings.Machines);
                 Write(context, rows, settings.Length);
                 return ExitCodes.Ok;
             }
@@ -83,16 +84,8 @@ internal static class LengthCommand
     }
 
     /// <summary>Lengths for every row of a candidate file.</summary>
-    internal static IReadOnlyList<LengthRow> ForFile(string path, string shownName, CommandContext context, LengthSettings length, RunDefaults defaults, string defaultMachine, IReadOnlyCollection<string> machines)
-    {
-        if (!File.Exists(path))
-        {
-            throw new InvalidInputException(new[] { $"{shownName}: no such file: expected a candidate file (CSV)" });
-        }
-
-        var candidates = CandidateReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(path), shownName), shownName, length, defaults, defaultMachine, machines);
-        return candidates.Select(c => LengthRow.From(c.Id, c.Spec.Configuration, length)).ToList();
-    }
+    internal static IReadOnlyList<LengthRow> ForFile(string path, string shownName, LengthSettings length, RunDefaults defaults, string defaultMachine, IReadOnlyCollection<string> machines) =>
+        CandidateFile.Read(path, shownName, length, defaults, defaultMachine, machines).Select(c => LengthRow.From(c.Id, c.Configuration, length)).ToList();
 
     internal static void Write(CommandContext context, IReadOnlyList<LengthRow> rows, LengthSettings settings)
     {
