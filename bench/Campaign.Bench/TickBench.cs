@@ -88,12 +88,12 @@ public static class TickBench
             using (var workspace = Workspace.Open(folder, time))
             using (var tx = workspace.Connection.BeginTransaction())
             {
-                var at = time.GetUtcNow().ToString("O", System.Globalization.CultureInfo.InvariantCulture);
+                var at = time.GetUtcNow();
                 for (var i = 0; i < runs; i++)
                 {
-                    var run = new TrackedRun { RunId = $"b{i:D6}.L1", ConfigId = $"b{i:D6}", Level = 1, Machine = "simulated", Cores = 64, Folder = Path.Combine("runs", $"b{i:D6}.L1"), TargetLength = 5000, Position = i, State = "planned" };
-                    run.SetConfiguration(new BinaryConfiguration(MassRatio.From(1 + (i % 9)), Spin.From(0, 0, 0), Spin.From(0, 0, 0), 0.018));
-                    TrackingStore.Add(workspace.Connection, tx, run, at);
+                    var configuration = new BinaryConfiguration(MassRatio.From(1 + (i % 9)), Spin.From(0, 0, 0), Spin.From(0, 0, 0), 0.018);
+                    var (run, added) = Campaign.Core.Tracking.TrackedRun.Adopt($"b{i:D6}.L1", $"b{i:D6}", 1, "simulated", 64, Path.Combine("runs", $"b{i:D6}.L1"), 5000, configuration, i, false, at);
+                    TrackingStore.Add(workspace.Connection, tx, run, added);
                 }
 
                 tx.Commit();

@@ -67,7 +67,7 @@ public sealed class ReportService
         var progress = snapshot.Runs.Select(r =>
         {
             var points = starts[r.RunId].OrderBy(s => s.Number)
-                .Select(s => (DateTimeOffset.Parse(s.SubmittedAt, CultureInfo.InvariantCulture), s.StartT)).ToList();
+                .Select(s => (s.SubmittedAt, s.StartT)).ToList();
             points.Add((r.FinishedAt ?? now, r.Progress));
             return new ProgressLine(r.RunId, r.TargetLength, points);
         }).ToList();

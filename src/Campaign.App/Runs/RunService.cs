@@ -98,40 +98,34 @@ public sealed class RunService
 
     /// <summary>Lets held runs continue (after a human has looked at them).</summary>
     public IReadOnlyList<RunChange> Release(RunSelection selection) =>
-        Change(selection, r => r == RunState.Held, "a held run", RunState.Planned, "released by a human");
+        Change(selection, r => r == RunState.Held, "a held run", RunState.Planned);
 
     /// <summary>Gives runs up: their open jobs are cancelled and they are marked failed.</summary>
     public IReadOnlyList<RunChange> Abandon(RunSelection selection) =>
-        Change(selection, r => r != RunState.Finished && r != RunState.Failed, "a run that has not finished or been given up", RunState.Failed, "abandoned by a human");
+        Change(selection, r => r != RunState.Finished && r != RunState.Failed, "a run that has not finished or been given up", RunState.Failed);
 
-    private IReadOnlyList<RunChange> Change(RunSelection selection, Func<RunState, bool> eligible, string expected, RunState to, string why)
+    private IReadOnlyList<RunChange> Change(RunSelection selection, Func<RunState, bool> eligible, string expected, RunState to)
     {
         using var workspace = Workspace.Open(selection.Workspace, _time);
         using var daemonLock = Lock(workspace);
         var runs = TrackingStore.Runs(workspace.Connection).ToDictionary(r => r.RunId, StringComparer.Ordinal);
         var chosen = Select(runs, selection, eligible, expected);
         var batch = to == RunState.Failed ? _batch.For(workspace, _time) : null;
-        var at = _time.GetUtcNow().ToString("O", CultureInfo.InvariantCulture);
+        var at = _time.GetUtcNow();
         var changes = new List<RunChange>();
         foreach (var run in chosen)
         {
             if (batch is not null)
             {
-                foreach (var segment in TrackingStore.SegmentsOf(workspace.Connection, run.RunId).Where(s => s.Phase == "submitted" && s.JobId is not null))
+                foreach (var segment in TrackingStore.SegmentsOf(workspace.Connection, run.RunId).Where(s => s.Phase == SegmentPhase.Submitted && s.JobId is not null))
                 {
                     batch[run.Machine].CancelAsync(segment.JobId!, CancellationToken.None).GetAwaiter().GetResult();
                 }
             }
 
             using var tx = workspace.Connection.BeginTransaction();
-            var previous = run.RunState;
-            run.State = to.Name();
-            run.Reason = to == RunState.Failed ? why : "";
-            run.FailuresWithProgress = 0;
-            run.FailuresWithoutProgress = 0;
-            run.StallRestarts = 0;
-            run.ShortSegments = 0;
-            TrackingStore.Save(workspace.Connection, tx, run, previous.Name(), why, at);
+            var previous = run.State;
+            TrackingStore.Save(workspace.Connection, tx, run, to == RunState.Failed ? run.Abandon(at) : run.Release(at));
             tx.Commit();
             changes.Add(new RunChange(run.RunId, previous, to));
         }
@@ -152,9 +146,9 @@ public sealed class RunService
             problems.Add($"{id}: no such tracked run: expected one of {string.Join(", ", runs.Keys.Take(10))}{(runs.Count > 10 ? " ..." : "")}");
         }
 
-        foreach (var id in selection.Ids.Where(runs.ContainsKey).Where(id => !eligible(runs[id].RunState)))
+        foreach (var id in selection.Ids.Where(runs.ContainsKey).Where(id => !eligible(runs[id].State)))
         {
-            problems.Add($"{id}: state {runs[id].State}: expected {expected}");
+            problems.Add($"{id}: state {runs[id].State.Name()}: expected {expected}");
         }
 
         if (problems.Count > 0)
@@ -167,8 +161,8 @@ public sealed class RunService
         {
             chosen.AddRange(runs.Values.Where(r =>
                 (selection.Match is null || FileSystemName.MatchesSimpleExpression(selection.Match, r.RunId, ignoreCase: false))
-                && (selection.State is null || r.RunState == selection.State)
-                && eligible(r.RunState)));
+                && (selection.State is null || r.State == selection.State)
+                && eligible(r.State)));
         }
 
         var result = chosen.DistinctBy(r => r.RunId).OrderBy(r => r.Position).ToList();

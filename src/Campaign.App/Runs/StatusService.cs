@@ -14,7 +14,7 @@ namespace Campaign.App.Runs;
 /// <param name="ElapsedSeconds">Wall time used.</param>
 /// <param name="ChargedCoreHours">Charge.</param>
 /// <param name="RestartFrom">Checkpoint it restarted from.</param>
-public sealed record SegmentView(long Number, string? JobId, string State, string NativeState, long? ExitCode, long? Signal, double? ElapsedSeconds, double? ChargedCoreHours, string? RestartFrom);
+public sealed record SegmentView(long Number, string? JobId, string State, string NativeState, int? ExitCode, int? Signal, double? ElapsedSeconds, double? ChargedCoreHours, string? RestartFrom);
 
 /// <summary>One tracked run as status shows it.</summary>
 /// <param name="Run">The run.</param>
@@ -59,12 +59,12 @@ public sealed class StatusService
         var now = _time.GetUtcNow();
         var views = snapshot.Runs.Select(r =>
         {
-            var mine = segments.GetValueOrDefault(r.RunId) ?? new List<Segment>();
-            var elapsedHours = mine.Sum(s => s.ElapsedSeconds ?? 0) / 3600;
+            var mine = segments.GetValueOrDefault(r.RunId) ?? new List<JobSegment>();
+            var elapsedHours = mine.Sum(s => s.Elapsed?.TotalHours ?? 0);
             double? rate = elapsedHours > 0 ? r.Progress / elapsedHours : null;
             DateTimeOffset? finish = rate is > 0 && r.State.IsActive() ? now + TimeSpan.FromHours((r.TargetLength - r.Progress) / rate.Value) : null;
-            var list = mine.Select(s => new SegmentView(s.Number, s.JobId, s.Phase == "intent" ? "intent" : s.JobState, s.NativeState, s.ExitCode, s.Signal, s.ElapsedSeconds, s.ChargedCoreHours, s.RestartFrom)).ToList();
-            return new RunView(r, rate, finish, mine.Sum(s => s.ChargedCoreHours ?? 0), list);
+            var list = mine.Select(s => new SegmentView(s.Number, s.JobId, s.Phase == SegmentPhase.Intent ? "intent" : s.JobState, s.NativeState, s.ExitCode, s.Signal, s.Elapsed?.TotalSeconds, s.Charged, s.RestartFrom)).ToList();
+            return new RunView(r, rate, finish, mine.Sum(s => s.Charged ?? 0), list);
         }).ToList();
         PlanSummary? plan = null;
         if (snapshot.Plan is { } p)

@@ -3,6 +3,7 @@ using System.Text.Json;
 using Campaign.Core.Lifecycle;
 using Campaign.Core.Domain;
 using Campaign.Core.Physics;
+using Campaign.Core.Tracking;
 using Campaign.Store;
 
 namespace Campaign.App.Runs;
@@ -68,7 +69,7 @@ public sealed class TrackService
         var settings = workspace.Config.Tracking;
         var added = new List<TrackedRun>();
         var already = new List<string>();
-        var at = _time.GetUtcNow().ToString("O", CultureInfo.InvariantCulture);
+        var at = _time.GetUtcNow();
         using var tx = workspace.Connection.BeginTransaction();
         foreach (var entry in plan.Runs.Where(e => request.Only is null || request.Only.Contains(e.ConfigId)))
         {
@@ -81,22 +82,9 @@ public sealed class TrackService
 
             known.Add(id);
             var target = entry.TargetLength ?? SimulatedLength.Estimate(entry.Configuration, workspace.Config.Length).Total;
-            var run = new TrackedRun
-            {
-                RunId = id,
-                ConfigId = entry.ConfigId,
-                Level = entry.Level,
-                Machine = request.Machine ?? entry.Machine,
-                Cores = request.Cores ?? entry.Cores,
-                Folder = Path.Combine(settings.RunsFolder, id),
-                TargetLength = target,
-                Position = position++,
-                State = "planned",
-                Rehearsal = request.Rehearsal,
-            };
-            run.SetConfiguration(entry.Configuration);
+            var (run, adopted) = TrackedRun.Adopt(id, entry.ConfigId, entry.Level, request.Machine ?? entry.Machine, request.Cores ?? entry.Cores, Path.Combine(settings.RunsFolder, id), target, entry.Configuration, position++, request.Rehearsal, at);
             WriteRunFolder(workspace, run);
-            TrackingStore.Add(workspace.Connection, tx, run, at);
+            TrackingStore.Add(workspace.Connection, tx, run, adopted);
             added.Add(run);
         }
 

@@ -31,6 +31,9 @@ public sealed class SimulatedMachine : IBatchSystem
     /// <summary>While true every call fails as a machine whose batch commands cannot read their configuration.</summary>
     public bool Down { get; set; }
 
+    /// <summary>Job names this machine refuses, as a controller refuses a job's request (its account, its size).</summary>
+    public HashSet<string> Refused { get; } = new(StringComparer.Ordinal);
+
     /// <summary>Calls made while down.</summary>
     public int RefusedCalls { get; private set; }
 
@@ -43,6 +46,11 @@ public sealed class SimulatedMachine : IBatchSystem
     public Task<string> SubmitAsync(JobRequest request, CancellationToken cancellationToken)
     {
         Check();
+        if (Refused.Contains(request.Name))
+        {
+            throw new BatchSystemException(BatchErrorKind.Rejected, "sbatch: error: Batch job submission failed: Invalid account or account/partition combination specified\n(details)");
+        }
+
         var id = Interlocked.Increment(ref _nextId).ToString(CultureInfo.InvariantCulture);
         _jobs[id] = new Job(id, request, _clock.GetUtcNow());
         return Task.FromResult(id);

@@ -1,0 +1,125 @@
+using System.Globalization;
+using Campaign.Batch;
+using Campaign.Core.Tracking;
+using Campaign.Store;
+using Microsoft.Data.Sqlite;
+
+namespace Campaign.Tracking.Cycle;
+
+/// <summary>
+/// What the steps of one reconcile cycle share: the workspace, the batch systems, the clock, the runs as loaded at
+/// the start, and what the cycle has learnt (machines at fault or answering, messages, notices, counts).
+/// </summary>
+internal sealed class CycleContext
+{
+    public CycleContext(Workspace workspace, IReadOnlyDictionary<string, IBatchSystem> batch, TimeProvider time, IReadOnlyDictionary<string, string> jobEnvironment)
+    {
+        Workspace = workspace;
+        BatchSystems = batch;
+        Time = time;
+        JobEnvironment = jobEnvironment;
+        Runs = TrackingStore.Runs(workspace.Connection).ToDictionary(r => r.RunId, StringComparer.Ordinal);
+    }
+
+    public Workspace Workspace { get; }
+
+    public IReadOnlyDictionary<string, IBatchSystem> BatchSystems { get; }
+
+    public TimeProvider Time { get; }
+
+    public IReadOnlyDictionary<string, string> JobEnvironment { get; }
+
+    public SqliteConnection Db => Workspace.Connection;
+
+    public TrackingSettings Settings => Workspace.Config.Tracking;
+
+    public DateTimeOffset Now => Time.GetUtcNow();
+
+    /// <summary>Every tracked run, by id.</summary>
+    public Dictionary<string, TrackedRun> Runs { get; }
+
+    /// <summary>State changes to announce.</summary>
+    public List<Notice> Notices { get; } = new();
+
+    /// <summary>Lines for the cycle's report.</summary>
+    public List<string> Messages { get; } = new();
+
+    /// <summary>Batch-system queries made, per machine.</summary>
+    public Dictionary<string, int> Queries { get; } = new(StringComparer.Ordinal);
+
+    /// <summary>Machines whose batch system failed this cycle, with what failed.</summary>
+    public Dictionary<string, string> Faults { get; } = new(StringComparer.Ordinal);
+
+    /// <summary>Machines whose batch system answered this cycle.</summary>
+    public HashSet<string> Answered { get; } = new(StringComparer.Ordinal);
+
+    public int Submitted { get; set; }
+
+    public int Ended { get; set; }
+
+    public int Finished { get; set; }
+
+    public int Held { get; set; }
+
+    public IBatchSystem Batch(string machine) =>
+        BatchSystems.TryGetValue(machine, out var batch) ? batch : throw new InvalidOperationException($"no batch system for machine {machine}");
+
+    public RunFolder Folder(TrackedRun run) => new(Path.Combine(Workspace.Root, run.Folder), Settings);
+
+    /// <summary>The segments not yet ended, read now.</summary>
+    public IReadOnlyList<JobSegment> OpenSegments() => TrackingStore.Segments(Db).Where(s => s.IsOpen).ToList();
+
+    /// <summary>One transaction around <paramref name="write"/>.</summary>
+    public void Commit(Action<SqliteTransaction> write)
+    {
+        using var tx = Db.BeginTransaction();
+        write(tx);
+        tx.Commit();
+    }
+
+    /// <summary>Saves a run with its transition (an event; a notice when the state changed).</summary>
+    public void Save(SqliteTransaction tx, TrackedRun run, RunTransition? transition)
+    {
+        TrackingStore.Save(Db, tx, run, transition);
+        if (transition is { Changed: true })
+        {
+            Notices.Add(new Notice(transition.At.ToString("O", CultureInfo.InvariantCulture), run.RunId, transition.From?.Name() ?? "", transition.To.Name(), transition.Why));
+        }
+    }
+
+    /// <summary>
+    /// Runs a batch-system call; on a batch-system error the machine is at fault for this cycle (nothing is
+    /// concluded about its runs) and false is returned.
+    /// </summary>
+    public async Task<bool> Guarded(string machine, string what, Func<Task> call)
+    {
+        try
+        {
+            await call().ConfigureAwait(false);
+            Answered.Add(machine);
+            return true;
+        }
+        catch (BatchSystemException e)
+        {
+            MachineFault(machine, what, e);
+            return false;
+        }
+    }
+
+    /// <summary>Notes that <paramref name="machine"/> failed this cycle: one message per machine; the whole text goes to the event log.</summary>
+    public void MachineFault(string machine, string what, BatchSystemException e)
+    {
+        if (Faults.TryAdd(machine, $"while {what}: {e.Message}"))
+        {
+            Messages.Add($"{machine}: unreachable ({BatchErrorText.FirstLine(e.Message)}); its runs are left as they were; tried again next cycle");
+        }
+    }
+
+    /// <summary>Records why a segment is cancelled, then asks its batch system.</summary>
+    public async Task Cancel(TrackedRun run, JobSegment segment, string reason, CancellationToken cancellationToken)
+    {
+        segment.CancelFor(reason);
+        Commit(tx => TrackingStore.Save(Db, tx, segment));
+        await Batch(run.Machine).CancelAsync(segment.JobId!, cancellationToken).ConfigureAwait(false);
+    }
+}

@@ -1,0 +1,102 @@
+using Campaign.Batch;
+using Campaign.Core.Domain;
+using Campaign.Core.Tracking;
+using Campaign.Store;
+
+namespace Campaign.Tracking.Cycle;
+
+/// <summary>
+/// Step 3: a segment that is over is charged (its elapsed time on its charged cores, the worst case when the batch
+/// system does not say), and its run decides: finish (written into the run logs unless a rehearsal), continue from
+/// the newest valid checkpoint, or hold. Other open segments of a finished or held run are cancelled.
+/// </summary>
+internal static class EndSegments
+{
+    public static async Task EndAsync(CycleContext c, TrackedRun run, JobSegment segment, JobStatus status, CancellationToken cancellationToken)
+    {
+        var profile = c.Workspace.Machine(run.Machine);
+        var charged = status.Elapsed is { } e
+            ? profile.ChargedCoreHours(status.ChargedCores ?? run.Cores, e.TotalHours)
+            : segment.WorstCase; // no elapsed time known: charge the worst case rather than nothing
+        var folder = c.Folder(run);
+        var points = folder.Progress();
+        var latest = points.Count > 0 ? Math.Max(points[^1].Time, run.Progress) : run.Progress;
+        var others = TrackingStore.SegmentsOf(c.Db, run.RunId).Where(s => s.IsOpen && s.Id != segment.Id).ToList();
+        var ending = Ending(status, segment);
+        if (ending != "completed" && latest <= segment.StartT && Signals.Number(c.Settings.WarningSignal) is { } warning && Signals.EndedBy(warning, status.ExitCode, status.Signal))
+        {
+            ending = "too_short";
+        }
+
+        var exit = status.ExitCode is null ? "" : $", exit {status.ExitCode}:{status.Signal ?? 0}";
+        var step = NextStep.Continue;
+        c.Commit(tx =>
+        {
+            segment.End(status.State.ToString(), status.NativeState, status.ExitCode, status.Signal, status.Elapsed, charged, c.Now);
+            TrackingStore.Save(c.Db, tx, segment);
+            c.Ended++;
+            (step, var transition) = run.EndSegment(ending, segment.StartT, latest, folder.IsDone, others.Count > 0, $"segment {segment.Number} (job {segment.JobId}) ended {status.NativeState}{exit}", c.Settings, c.Now);
+            c.Save(tx, run, transition.Changed || run.State.IsActive() || step != NextStep.Continue ? transition : null);
+            if (step == NextStep.Finish)
+            {
+                c.Finished++;
+                if (!run.Rehearsal)
+                {
+                    LogFinished(c, tx, run, folder);
+                }
+            }
+            else if (step == NextStep.Hold)
+            {
+                c.Held++;
+            }
+        });
+
+        if (step is NextStep.Finish or NextStep.Hold)
+        {
+            foreach (var other in others.Where(o => o.JobId is not null))
+            {
+                await c.Cancel(run, other, "superfluous", cancellationToken).ConfigureAwait(false);
+            }
+        }
+    }
+
+    private static string Ending(JobStatus status, JobSegment segment) => status.State switch
+    {
+        JobState.Completed => "completed",
+        JobState.TimedOut => "timed_out",
+        JobState.Preempted => "preempted",
+        JobState.NodeFailed => "node_failed",
+        JobState.Failed => "failed",
+        JobState.OutOfMemory => "out_of_memory",
+        JobState.LaunchFailed => "launch_failed",
+        JobState.DeadlineMissed => "deadline",
+        JobState.Cancelled when segment.CancelReason == "stall" => "cancelled_for_stall",
+        JobState.Cancelled => "cancelled",
+        _ => "vanished",
+    };
+
+    private static void LogFinished(CycleContext c, Microsoft.Data.Sqlite.SqliteTransaction tx, TrackedRun run, RunFolder folder)
+    {
+        var segments = TrackingStore.SegmentsOf(c.Db, run.RunId, tx);
+        var wallHours = segments.Sum(s => s.Elapsed?.TotalHours ?? 0);
+        var (checkpointGb, outputGb) = folder.Sizes();
+        DateTimeOffset? started = segments.Count == 0 ? null : segments.Min(s => s.SubmittedAt);
+        var log = new RunLog(
+            run.RunId,
+            run.Configuration,
+            run.Level,
+            run.Cores,
+            run.Machine,
+            Math.Max(wallHours, 1e-9),
+            RunOutcome.Completed,
+            segments.Sum(s => s.Charged ?? 0),
+            Math.Max(run.Progress, 1e-9),
+            null,
+            segments.Count,
+            checkpointGb > 0 ? checkpointGb : null,
+            outputGb > 0 ? outputGb : null,
+            started,
+            c.Now);
+        TrackingStore.LogFinishedRun(c.Db, tx, log, c.Now);
+    }
+}

@@ -1,0 +1,45 @@
+using Campaign.Core.Tracking;
+using Campaign.Store;
+
+namespace Campaign.Tracking.Cycle;
+
+/// <summary>
+/// Step 1: segments recorded as intents only (the host stopped between recording one and learning its job id) are
+/// looked up by their job name: found, they are submitted; not found, they never reached the batch system and are
+/// dropped, so the run is submitted again.
+/// </summary>
+internal static class RecoverIntents
+{
+    public static async Task RunAsync(CycleContext c, CancellationToken cancellationToken)
+    {
+        foreach (var segment in c.OpenSegments().Where(s => s.Phase == Core.Lifecycle.SegmentPhase.Intent))
+        {
+            var run = c.Runs[segment.RunId];
+            if (c.Faults.ContainsKey(run.Machine))
+            {
+                continue;
+            }
+
+            string? id = null;
+            if (!await c.Guarded(run.Machine, "looking up an unconfirmed submission", async () => id = await c.Batch(run.Machine).FindAsync(segment.JobName, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
+            {
+                continue;
+            }
+
+            c.Commit(tx =>
+            {
+                if (id is not null)
+                {
+                    segment.Submitted(id, segment.JobState);
+                    TrackingStore.Save(c.Db, tx, segment);
+                    c.Save(tx, run, run.IntentResolved(true, $"segment {segment.Number} found in the batch system as job {id} (its submission was not recorded before a stop)", c.Now));
+                }
+                else
+                {
+                    TrackingStore.DeleteIntent(c.Db, tx, segment.Id);
+                    c.Save(tx, run, run.IntentResolved(false, $"segment {segment.Number} never reached the batch system; it will be submitted again", c.Now));
+                }
+            });
+        }
+    }
+}

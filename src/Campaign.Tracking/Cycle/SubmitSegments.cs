@@ -1,0 +1,147 @@
+using System.Globalization;
+using Campaign.Batch;
+using Campaign.Core.Domain;
+using Campaign.Core.Lifecycle;
+using Campaign.Core.Tracking;
+using Campaign.Store;
+
+namespace Campaign.Tracking.Cycle;
+
+/// <summary>
+/// Step 5: every run that needs its next segment (or a pre-queued one) gets it, oldest plan position first, if the
+/// budget rule allows its worst case (<see cref="CampaignLedger.Allows"/>); else it waits with the reason. A
+/// submission records its intent first and its job id after. A refusal of the request holds the run; a failure of
+/// the machine leaves the run as it was and skips the machine for the rest of the cycle.
+/// </summary>
+internal static class SubmitSegments
+{
+    public static async Task RunAsync(CycleContext c, CancellationToken cancellationToken)
+    {
+        var segments = TrackingStore.Segments(c.Db);
+        var openByRun = segments.Where(s => s.IsOpen).ToLookup(s => s.RunId, StringComparer.Ordinal);
+        var lastNumber = segments.GroupBy(s => s.RunId, StringComparer.Ordinal).ToDictionary(g => g.Key, g => g.Max(s => s.Number), StringComparer.Ordinal);
+        var ledger = new CampaignLedger(c.Workspace.Config.Allocations, c.Workspace.Machines, TrackingStore.Charges(c.Db));
+        var today = DateOnly.FromDateTime(c.Now.UtcDateTime);
+        foreach (var run in c.Runs.Values.OrderBy(r => r.Position).ToList())
+        {
+            if (c.Faults.ContainsKey(run.Machine))
+            {
+                continue;
+            }
+
+            var open = openByRun[run.RunId].ToList();
+            var needsFirst = run.State is RunState.Planned or RunState.WaitingBudget && open.Count == 0;
+            var prequeue = c.Settings.Prequeue && run.State == RunState.Running && open.Count == 1 && open[0].JobId is not null;
+            if (!needsFirst && !prequeue)
+            {
+                continue;
+            }
+
+            var profile = c.Workspace.Machine(run.Machine);
+            var wallHours = c.Settings.SegmentMinutes is { } minutes ? minutes / 60 : profile.WallLimitHours;
+            var worst = profile.ChargedCoreHours(run.Cores, wallHours);
+            var verdict = ledger.Allows(run.Machine, worst, today, c.Settings.ReserveCoreHours);
+            if (!verdict.Allowed)
+            {
+                if (needsFirst && run.WaitForBudget(verdict.Why, c.Now) is { } waiting)
+                {
+                    c.Commit(tx => c.Save(tx, run, waiting));
+                }
+
+                continue;
+            }
+
+            var number = lastNumber.GetValueOrDefault(run.RunId) + 1;
+            if (await Submit(c, run, profile, wallHours, worst, number, prequeue ? open[0].JobId : null, cancellationToken).ConfigureAwait(false))
+            {
+                ledger.Commit(run.Machine, worst);
+            }
+        }
+    }
+
+    /// <summary>Submits one segment (intent first, job id after); returns true when its worst case is now committed.</summary>
+    private static async Task<bool> Submit(CycleContext c, TrackedRun run, MachineProfile profile, double wallHours, double worst, int number, string? afterAny, CancellationToken cancellationToken)
+    {
+        var folder = c.Folder(run);
+        var (checkpoint, skipped) = Checkpoints.NewestValid(folder.CheckpointFiles(), c.Settings.CheckpointMarker.Length > 0, TimeSpan.FromSeconds(c.Settings.CheckpointSettleSeconds), c.Now);
+        var name = JobName.For(run.RunId, number);
+        Directory.CreateDirectory(Path.Combine(folder.Path, "logs"));
+        var environment = new Dictionary<string, string>(c.JobEnvironment)
+        {
+            ["CAMPAIGN_RUN_ID"] = run.RunId,
+            ["CAMPAIGN_RUN_DIR"] = folder.Path,
+            ["CAMPAIGN_SEGMENT"] = number.ToString(CultureInfo.InvariantCulture),
+        };
+        if (afterAny is not null)
+        {
+            environment["CAMPAIGN_RESTART"] = "newest"; // decided when it starts: the script picks the newest valid checkpoint
+        }
+        else if (checkpoint is not null)
+        {
+            environment["CAMPAIGN_RESTART"] = checkpoint.Path;
+        }
+
+        var settings = c.Settings;
+        var warning = settings.WarningSignal.Length > 0 && settings.WarningSeconds > 0 && settings.WarningSeconds < wallHours * 3600
+            ? new WarningSignal(settings.WarningSignal, settings.WarningSeconds)
+            : null;
+        var logBase = Path.Combine(folder.Path, "logs", "segment-" + number.ToString("D3", CultureInfo.InvariantCulture));
+        var request = new JobRequest(name, Path.GetFullPath(settings.Script, c.Workspace.Root), folder.Path, run.Cores, TimeSpan.FromHours(wallHours),
+            logBase + ".out", logBase + ".err", environment, afterAny, warning);
+        var segment = new JobSegment(run.RunId, number, name, worst, TimeSpan.FromHours(wallHours), run.Progress, afterAny is not null ? "newest at start" : checkpoint?.Path, c.Now);
+
+        // 1. The intent, before the batch system hears of it.
+        var before = (run.State, run.Reason);
+        var restart = checkpoint is null ? "from the start" : "from " + Path.GetFileName(checkpoint.Path);
+        var passed = skipped.Count == 0 ? "" : "; passed over " + string.Join(", ", skipped.Select(s => Path.GetFileName(s.File.Path) + " (" + s.Why + ")"));
+        c.Commit(tx =>
+        {
+            TrackingStore.Insert(c.Db, tx, segment);
+            run.UseCheckpoint(afterAny is null ? checkpoint?.Path : null);
+            var why = afterAny is null ? $"submitting segment {number} {restart}{passed}" : $"pre-queueing segment {number} after job {afterAny}";
+            c.Save(tx, run, run.Submitting(why, prequeued: afterAny is not null, c.Now));
+        });
+
+        string id;
+        try
+        {
+            id = await c.Batch(run.Machine).SubmitAsync(request, cancellationToken).ConfigureAwait(false);
+            c.Answered.Add(run.Machine);
+        }
+        catch (BatchSystemException e) when (e.Kind == BatchErrorKind.Rejected)
+        {
+            // The batch system refused this request: the run's fault. Held with the first line; the whole text in the event.
+            c.Answered.Add(run.Machine);
+            c.Commit(tx =>
+            {
+                TrackingStore.DeleteIntent(c.Db, tx, segment.Id);
+                c.Save(tx, run, run.Hold("submission rejected: " + BatchErrorText.FirstLine(e.Message), c.Now, "submission rejected: " + e.Message));
+            });
+            c.Held++;
+            return false;
+        }
+        catch (BatchSystemException e) when (e.Kind == BatchErrorKind.Permanent)
+        {
+            // The machine's fault (its commands or configuration): the run is left as it was before this cycle.
+            c.Commit(tx =>
+            {
+                TrackingStore.DeleteIntent(c.Db, tx, segment.Id);
+                c.Save(tx, run, run.Restore(before.State, before.Reason, $"{run.Machine} unreachable: segment {number} not submitted; left as it was", c.Now));
+            });
+            c.MachineFault(run.Machine, $"submitting {name}", e);
+            return false;
+        }
+        catch (BatchSystemException e)
+        {
+            // It may or may not have reached the batch system: the intent stays, and the next cycle looks it up by name.
+            c.MachineFault(run.Machine, $"submitting {name} (not confirmed: looked up by name next cycle)", e);
+            return true;
+        }
+
+        // 2. The job id, after.
+        segment.Submitted(id, JobState.Pending.ToString());
+        c.Commit(tx => TrackingStore.Save(c.Db, tx, segment));
+        c.Submitted++;
+        return true;
+    }
+}

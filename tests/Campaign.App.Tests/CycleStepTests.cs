@@ -1,0 +1,110 @@
+using Campaign.App.Logs;
+using Campaign.App.Models;
+using Campaign.App.Plans;
+using Campaign.App.Runs;
+using Campaign.App.Tests.Support;
+using Campaign.Batch;
+using Campaign.Core.CostModel;
+using Campaign.Core.Lifecycle;
+using Campaign.Core.Selection;
+using Campaign.Core.Tracking;
+using Campaign.Store;
+using Campaign.Tracking.Cycle;
+
+namespace Campaign.App.Tests;
+
+/// <summary>The steps of the reconcile cycle, each on its own, against an in-memory machine on a simulated clock.</summary>
+public sealed class CycleStepTests : IDisposable
+{
+    private readonly TempFolder _folder = new();
+    private readonly SimulatedClock _clock = new(new DateTimeOffset(2027, 2, 1, 8, 0, 0, TimeSpan.Zero));
+    private readonly Dictionary<string, SimulatedMachine> _machines = new(StringComparer.Ordinal);
+
+    public CycleStepTests()
+    {
+        TestWorkspace.Create(Ws, _clock);
+        new RunLogService(_clock).Import(new ImportLogsRequest(Ws, Path.Combine(Ws, "run-logs.csv"), "run-logs.csv", false));
+        new CostModelService(_clock).Fit(Ws, new CostFitOptions());
+        new PlanService(_clock).Select(new SelectRequest(Ws, Path.Combine(Ws, "candidates.csv"), "candidates.csv", SelectionObjective.Coverage, null, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
+        var plan = new PlanService(_clock).Current(Ws)!;
+        new TrackService(_clock).Track(new TrackRequest(Ws, null, null, plan.ConfigIds.Where(id => plan.Runs.First(e => e.ConfigId == id).Machine == Cluster).Take(2).ToList(), false));
+        foreach (var profile in Workspaces.WorkspaceAdmin.Settings(Ws).Machines.Values)
+        {
+            _machines[profile.Name] = new SimulatedMachine(_clock, profile, _ => 100, TimeSpan.FromHours(1));
+        }
+    }
+
+    private const string Cluster = "halyard";
+
+    private string Ws => Path.Combine(_folder.Path, "ws");
+
+    public void Dispose() => _folder.Dispose();
+
+    private CycleContext Context(Workspace workspace) => new(workspace, _machines.ToDictionary(m => m.Key, m => (IBatchSystem)m.Value), _clock, new Dictionary<string, string>());
+
+    [Fact]
+    public async Task Recover_intents_finds_a_submission_the_batch_system_has_and_drops_one_it_never_got()
+    {
+        using var workspace = Workspace.Open(Ws, _clock);
+        var runs = TrackingStore.Runs(workspace.Connection).Take(2).ToList();
+        var reached = new JobSegment(runs[0].RunId, 1, JobName.For(runs[0].RunId, 1), 10, TimeSpan.FromHours(1), 0, null, _clock.GetUtcNow());
+        var lost = new JobSegment(runs[1].RunId, 1, JobName.For(runs[1].RunId, 1), 10, TimeSpan.FromHours(1), 0, null, _clock.GetUtcNow());
+        using (var tx = workspace.Connection.BeginTransaction())
+        {
+            TrackingStore.Insert(workspace.Connection, tx, reached);
+            TrackingStore.Insert(workspace.Connection, tx, lost);
+            tx.Commit();
+        }
+
+        // The first submission reached the batch system before the host stopped; the second never did.
+        var folder = Path.Combine(Ws, runs[0].Folder);
+        var id = await _machines[Cluster].SubmitAsync(new JobRequest(reached.JobName, "/bin/true", folder, 1, TimeSpan.FromHours(1), "o", "e", new Dictionary<string, string> { ["CAMPAIGN_RUN_ID"] = runs[0].RunId }), CancellationToken.None);
+
+        var c = Context(workspace);
+        await RecoverIntents.RunAsync(c, CancellationToken.None);
+
+        var segments = TrackingStore.Segments(workspace.Connection);
+        var found = Assert.Single(segments);
+        Assert.Equal((runs[0].RunId, id, SegmentPhase.Submitted), (found.RunId, found.JobId, found.Phase));
+        Assert.Equal(RunState.Queued, TrackingStore.Run(workspace.Connection, runs[0].RunId)!.State);
+        Assert.Equal(RunState.Planned, TrackingStore.Run(workspace.Connection, runs[1].RunId)!.State);
+        Assert.Contains(TrackingStore.Events(workspace.Connection, runs[1].RunId), e => e.Why.Contains("never reached the batch system", StringComparison.Ordinal));
+    }
+
+    [Fact]
+    public async Task Submit_holds_only_the_run_whose_request_is_refused_and_a_broken_machine_leaves_every_run_as_it_was()
+    {
+        using var workspace = Workspace.Open(Ws, _clock);
+        var runs = TrackingStore.Runs(workspace.Connection).Where(r => r.Machine == Cluster).ToList();
+        Assert.True(runs.Count >= 3);
+        _machines[Cluster].Refused.Add(JobName.For(runs[1].RunId, 1));
+
+        var c = Context(workspace);
+        await SubmitSegments.RunAsync(c, CancellationToken.None);
+        var after = TrackingStore.Runs(workspace.Connection).ToDictionary(r => r.RunId);
+        Assert.Equal(RunState.Held, after[runs[1].RunId].State);
+        Assert.Equal("submission rejected: sbatch: error: Batch job submission failed: Invalid account or account/partition combination specified", after[runs[1].RunId].Reason);
+        Assert.All(runs.Where(r => r.RunId != runs[1].RunId), r => Assert.Equal(RunState.Queued, after[r.RunId].State));
+        Assert.Empty(c.Faults);
+
+        // Now the machine breaks: a released run's submission fails, the run is left as it was, the machine is at fault.
+        _machines[Cluster].Down = true;
+        var release = TrackingStore.Run(workspace.Connection, runs[1].RunId)!;
+        using (var tx = workspace.Connection.BeginTransaction())
+        {
+            TrackingStore.Save(workspace.Connection, tx, release, release.Release(_clock.GetUtcNow()));
+            tx.Commit();
+        }
+
+        var broken = Context(workspace);
+        await SubmitSegments.RunAsync(broken, CancellationToken.None);
+        Machines.Record(broken);
+        Assert.Equal(RunState.Planned, TrackingStore.Run(workspace.Connection, runs[1].RunId)!.State);
+        Assert.Equal(Cluster, Assert.Single(broken.Faults).Key);
+        Assert.Single(broken.Messages, m => m.StartsWith(Cluster + ": unreachable (sbatch: error: s_p_parse_file", StringComparison.Ordinal));
+        Assert.Equal(1, _machines[Cluster].RefusedCalls); // skipped for the rest of the cycle after the first failure
+        var fault = Assert.Single(MachineFaultStore.All(workspace.Connection));
+        Assert.DoesNotContain('\n', fault.Message);
+        Assert.Equal(runs.Count - 1, TrackingStore.Segments(workspace.Connection).Count);
+    }
+}
