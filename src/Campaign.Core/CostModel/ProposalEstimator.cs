@@ -181,13 +181,8 @@ public static class ProposalEstimator
             return machine;
         }).ToList();
 
-        Matrix<double>? cholesky = null;
+        var sampler = model is null ? null : new CoefficientSampler(model);
         var p = model?.Coefficients.Length ?? 0;
-        if (model is not null)
-        {
-            var covariance = Matrix<double>.Build.Dense(p, p, (i, j) => model.UnscaledCovariance[i][j] * model.ResidualSd * model.ResidualSd);
-            cholesky = covariance.Cholesky().Factor;
-        }
 
         // Column-major features per machine, so that each sample's linear predictors are a few passes over arrays.
         var columns = groups.Select(g => Enumerable.Range(0, p).Select(k => g.Modelled.Select(m => m.X[k]).ToArray()).ToArray()).ToList();
@@ -205,16 +200,7 @@ public static class ProposalEstimator
         Parallel.For(0, samples, s =>
         {
             var random = new Random(unchecked((options.Seed * 1_000_003) + s));
-            var b = new double[p];
-            if (model is not null)
-            {
-                var z = Vector<double>.Build.Dense(p, _ => Normal.Sample(random, 0, 1));
-                var shift = cholesky! * z;
-                for (var k = 0; k < p; k++)
-                {
-                    b[k] = model.Coefficients[k] + shift[k];
-                }
-            }
+            var b = sampler?.Draw(random) ?? new double[p];
 
             for (var g = 0; g < groups.Count; g++)
             {

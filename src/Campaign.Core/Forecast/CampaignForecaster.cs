@@ -37,14 +37,7 @@ public static class CampaignForecaster
         var windowCharge = new double[windows.Count, replicas];
         var fits = 0;
 
-        Matrix<double>? cholesky = null;
-        Vector<double>? beta = null;
-        if (model is not null)
-        {
-            var p = model.Coefficients.Length;
-            cholesky = Matrix<double>.Build.Dense(p, p, (i, j) => model.UnscaledCovariance[i][j] * model.ResidualSd * model.ResidualSd).Cholesky().Factor;
-            beta = Vector<double>.Build.DenseOfArray(model.Coefficients);
-        }
+        var sampler = model is null ? null : new CoefficientSampler(model);
 
         var byMachine = Enumerable.Range(0, n).GroupBy(i => runs[i].Machine).OrderBy(g => g.Key, StringComparer.Ordinal).Select(g => g.ToArray()).ToList();
         var segmentCounts = new int[replicas, n];
@@ -55,17 +48,7 @@ public static class CampaignForecaster
         {
             var random = new Random(unchecked(options.Seed * 1_000_003 + r));
             var remaining = new double[n];
-            Vector<double>? b = null;
-            if (beta is not null)
-            {
-                var z = new double[beta.Count];
-                for (var j = 0; j < z.Length; j++)
-                {
-                    z[j] = Normal.Sample(random, 0, 1);
-                }
-
-                b = beta + cholesky! * Vector<double>.Build.DenseOfArray(z);
-            }
+            var b = sampler?.Draw(random);
 
             for (var i = 0; i < n; i++)
             {
