@@ -1,6 +1,5 @@
 using Campaign.Core.CostModel;
 using MathNet.Numerics.Distributions;
-using MathNet.Numerics.LinearAlgebra;
 
 namespace Campaign.Core.Forecast;
 
