@@ -32,6 +32,6 @@ public static partial class JobName
     /// <summary>True when <paramref name="name"/> needs no quoting anywhere.</summary>
     public static bool IsValid(string name) => SafeName().IsMatch(name);
 
-    [GeneratedRegex("^[A-Za-z0-9._-]{1,64}$")]
+    [GeneratedRegex("^[A-Za-z0-9._-]{1,64}\\z")]
     private static partial Regex SafeName();
 }

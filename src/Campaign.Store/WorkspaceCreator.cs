@@ -14,9 +14,10 @@ public static class WorkspaceCreator
 {
     /// <summary>
     /// Writes campaign.toml and machines/*.toml into <paramref name="root"/> and creates campaign.db. A folder
-    /// that already has files is refused unless <paramref name="force"/>; even then an existing campaign.db is
-    /// kept (its history is never thrown away) and only migrated. The template is validated before anything is
-    /// written.
+    /// that already has files is refused unless <paramref name="force"/>; even then nothing the user has is
+    /// replaced: an existing campaign.db is kept (its history is never thrown away) and only migrated, and an
+    /// existing campaign.toml or machine profile is kept with the template written beside it as NAME.new. The
+    /// template is validated before anything is written.
     /// </summary>
     public static IReadOnlyList<string> Create(string root, WorkspaceTemplate template, bool force, TimeProvider time)
     {
@@ -55,26 +56,32 @@ public static class WorkspaceCreator
             throw new InvalidInputException(problems);
         }
 
+        // A file the user already has is never overwritten: the template goes beside it as NAME.new.
         var written = new List<string>();
         Directory.CreateDirectory(Workspace.PathOf(root, Workspace.MachinesFolderName));
         foreach (var (file, text) in template.Profiles)
         {
-            var path = Path.Combine(root, Workspace.MachinesFolderName, file);
+            var path = Beside(Path.Combine(root, Workspace.MachinesFolderName, file));
             File.WriteAllText(path, text);
             written.Add(path);
         }
 
-        var configPath = Workspace.PathOf(root, Workspace.ConfigFileName);
+        var configPath = Beside(Workspace.PathOf(root, Workspace.ConfigFileName));
+        var keptConfig = configPath != Workspace.PathOf(root, Workspace.ConfigFileName);
         OwnerOnly.WriteAllText(configPath, template.ConfigText);
         written.Add(configPath);
 
         var databasePath = Workspace.PathOf(root, Workspace.DatabaseFileName);
         using var connection = CampaignDatabase.Open(databasePath, time);
         using var transaction = connection.BeginTransaction();
-        connection.Execute(
-            "INSERT INTO workspace_info (key, value) VALUES ('name', @Name) ON CONFLICT (key) DO UPDATE SET value = excluded.value",
-            new { config!.Name },
-            transaction);
+        if (!keptConfig)
+        {
+            connection.Execute(
+                "INSERT INTO workspace_info (key, value) VALUES ('name', @Name) ON CONFLICT (key) DO UPDATE SET value = excluded.value",
+                new { config!.Name },
+                transaction);
+        }
+
         connection.Execute(
             "INSERT INTO workspace_info (key, value) VALUES ('created_at', @At) ON CONFLICT (key) DO NOTHING",
             new { At = time.GetUtcNow().ToString("O", System.Globalization.CultureInfo.InvariantCulture) },
@@ -84,4 +91,7 @@ public static class WorkspaceCreator
         written.Add(databasePath);
         return written;
     }
+
+    /// <summary>The path to write a template file to: the path itself when free, else PATH.new beside the user's file.</summary>
+    private static string Beside(string path) => File.Exists(path) ? path + ".new" : path;
 }

@@ -100,4 +100,27 @@ public class WorkspaceTests
         Assert.Equal(before, File.GetLastWriteTimeUtc(db));
         Assert.Equal(length, new FileInfo(db).Length);
     }
+
+    [Fact]
+    public void Init_with_force_never_overwrites_the_users_config_or_profiles_and_writes_the_template_beside_them()
+    {
+        // Regression (faults issue, item 13): --force replaced campaign.toml (allocations, [tracking]) with the template.
+        using var folder = new TempFolder();
+        WorkspaceCreator.Create(folder.Path, Template(), force: false, FixedTime.Default);
+        var edited = Config.Replace("name = \"Test\"", "name = \"Our real campaign\"", StringComparison.Ordinal) + "\n[tracking]\nstall_minutes = 300\n";
+        File.WriteAllText(folder.File("campaign.toml"), edited);
+        var profile = Profile + "\ncharge_factor = 1.5\n";
+        File.WriteAllText(Path.Combine(folder.Path, "machines", "box.toml"), profile);
+
+        var written = WorkspaceCreator.Create(folder.Path, Template(), force: true, FixedTime.Default);
+
+        Assert.Equal(edited, File.ReadAllText(folder.File("campaign.toml")));
+        Assert.Equal(profile, File.ReadAllText(Path.Combine(folder.Path, "machines", "box.toml")));
+        Assert.Equal(Config, File.ReadAllText(folder.File("campaign.toml.new")));
+        Assert.Contains(folder.File("campaign.toml.new"), written);
+        Assert.Contains(Path.Combine(folder.Path, "machines", "box.toml.new"), written);
+        using var workspace = Workspace.Open(folder.Path, FixedTime.Default);
+        Assert.Equal("Our real campaign", workspace.Config.Name);
+        Assert.Equal(1.5, workspace.Machine("box").ChargeFactor);
+    }
 }

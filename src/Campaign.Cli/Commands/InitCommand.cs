@@ -10,7 +10,7 @@ internal static class InitCommand
     public static Command Build(CampaignApp app)
     {
         var folder = new Argument<string?>("DIR") { Description = "Folder to create the workspace in (default: --dir, else the current folder)", Arity = ArgumentArity.ZeroOrOne };
-        var force = new Option<bool>("--force") { Description = "Write into a folder that is not empty (an existing campaign.db is kept and migrated, never replaced)" };
+        var force = new Option<bool>("--force") { Description = "Write into a folder that is not empty: an existing campaign.db is kept and migrated, an existing campaign.toml or profile is kept and the template written beside it as NAME.new" };
         var command = new Command("init", "Create a workspace: campaign.toml, machines/*.toml and campaign.db") { folder, force };
         app.Bind(command, context =>
         {

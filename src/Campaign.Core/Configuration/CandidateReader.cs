@@ -27,7 +27,7 @@ public static partial class CandidateReader
     /// </summary>
     public const string IdRule = "an id of 1 to 48 characters: letters, digits, '.', '-' or '_', starting with a letter or digit";
 
-    [System.Text.RegularExpressions.GeneratedRegex("^[A-Za-z0-9][A-Za-z0-9._-]{0,47}$")]
+    [System.Text.RegularExpressions.GeneratedRegex("^[A-Za-z0-9][A-Za-z0-9._-]{0,47}\\z")]
     private static partial System.Text.RegularExpressions.Regex IdPattern();
 
     /// <summary>Parses and validates the file text.</summary>

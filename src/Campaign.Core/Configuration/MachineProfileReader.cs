@@ -89,9 +89,9 @@ public static partial class MachineProfileReader
     /// <summary>True when <paramref name="name"/> is a valid machine name.</summary>
     public static bool IsValidName(string name) => NamePattern().IsMatch(name);
 
-    [GeneratedRegex("^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$")]
+    [GeneratedRegex("^[A-Za-z0-9][A-Za-z0-9._-]{0,63}\\z")]
     private static partial Regex SiteNamePattern();
 
-    [GeneratedRegex("^[a-z][a-z0-9_-]{0,31}$")]
+    [GeneratedRegex("^[a-z][a-z0-9_-]{0,31}\\z")]
     private static partial Regex NamePattern();
 }

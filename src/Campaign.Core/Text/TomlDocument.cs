@@ -20,13 +20,13 @@ public static partial class TomlDocument
         return new Reader(text, source).ReadDocument();
     }
 
-    [GeneratedRegex(@"^[+-]?(0|[1-9](_?[0-9])*)$")]
+    [GeneratedRegex(@"^[+-]?(0|[1-9](_?[0-9])*)\z")]
     private static partial Regex IntegerPattern();
 
-    [GeneratedRegex(@"^[+-]?(0|[1-9](_?[0-9])*)((\.[0-9](_?[0-9])*)([eE][+-]?[0-9](_?[0-9])*)?|[eE][+-]?[0-9](_?[0-9])*)$")]
+    [GeneratedRegex(@"^[+-]?(0|[1-9](_?[0-9])*)((\.[0-9](_?[0-9])*)([eE][+-]?[0-9](_?[0-9])*)?|[eE][+-]?[0-9](_?[0-9])*)\z")]
     private static partial Regex FloatPattern();
 
-    [GeneratedRegex(@"^[0-9]{4}-[0-9]{2}-[0-9]{2}([Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})?)?$")]
+    [GeneratedRegex(@"^[0-9]{4}-[0-9]{2}-[0-9]{2}([Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})?)?\z")]
     private static partial Regex DatePattern();
 
     private sealed class Reader

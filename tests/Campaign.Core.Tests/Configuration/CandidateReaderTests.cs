@@ -59,4 +59,14 @@ public class CandidateReaderTests
             },
             error.Problems);
     }
+
+    [Theory]
+    [InlineData("\"evil\n\"")]
+    [InlineData("\"evil\r\n\"")]
+    public void An_id_that_ends_in_a_line_break_is_refused(string quotedId)
+    {
+        // Regression (faults issue, item 8): '$' matched before a final line break, so "evil\n" was an id.
+        var error = Assert.Throws<InvalidInputException>(() => Read($"id,q,chi1z,omega0\n{quotedId},2,0,0.02\n"));
+        Assert.Contains(error.Problems, p => p.StartsWith("c.csv:2:1: id = evil", StringComparison.Ordinal) && p.Contains("expected", StringComparison.Ordinal));
+    }
 }
