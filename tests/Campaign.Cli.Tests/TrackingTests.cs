@@ -224,6 +224,28 @@ public sealed class TrackingTests : IDisposable
     }
 
     [Fact]
+    public void A_run_whose_constraint_norm_is_not_finite_is_held_and_never_logged_as_completed()
+    {
+        // Regression (faults issue, item 11): progress lines "t nan", then the done marker: the run was finished and
+        // written into the run logs as completed.
+        Prepare("sm-q1-a00");
+        File.WriteAllText(Ws("nan-code.sh"), "#!/bin/sh\ncd \"$CAMPAIGN_RUN_DIR\" || exit 2\nfor t in 50 100 150 200 250 300 350 400; do echo \"$t nan\" >> progress.dat; done\ntouch DONE\n");
+        File.SetUnixFileMode(Ws("nan-code.sh"), (UnixFileMode)Convert.ToInt32("755", 8));
+        var config = File.ReadAllText(Ws("campaign.toml")).Replace("script = \"run-segment.sh\"", "script = \"nan-code.sh\"", StringComparison.Ordinal);
+        File.WriteAllText(Ws("campaign.toml"), config);
+        var logsBefore = CliRun.Of(_folder.Path, "--dir", "ws", "logs", "list", "--json").Json().GetProperty("runs").GetArrayLength();
+        TickUntilIdle(TimeSpan.FromSeconds(90));
+
+        foreach (var run in Status().EnumerateArray())
+        {
+            Assert.Equal("held", run.GetProperty("state").GetString());
+            Assert.Equal("constraint norm not finite (nan at t = 50 M): the run has gone bad", run.GetProperty("reason").GetString());
+        }
+
+        Assert.Equal(logsBefore, CliRun.Of(_folder.Path, "--dir", "ws", "logs", "list", "--json").Json().GetProperty("runs").GetArrayLength());
+    }
+
+    [Fact]
     public void The_budget_guard_stops_submission_at_the_line_and_says_which_runs_wait()
     {
         // One segment on the workstation may charge 1 core x 3 s = 1/1200 core-hour; the allocation has room for two.

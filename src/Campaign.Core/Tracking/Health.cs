@@ -10,7 +10,7 @@ public static class Health
     /// </summary>
     public static (double Rate, double RSquared)? NormGrowthRate(IReadOnlyList<ProgressPoint> points, int window)
     {
-        var recent = points.Where(p => p.Norm is > 0).TakeLast(window).ToList();
+        var recent = points.Where(p => p.Norm is > 0 && double.IsFinite(p.Norm.Value)).TakeLast(window).ToList();
         if (recent.Count < 3)
         {
             return null;
@@ -39,6 +39,14 @@ public static class Health
         _ = n;
         return (slope, r2);
     }
+
+    /// <summary>The first report whose constraint norm is not finite (NaN or infinite), or null: a run gone bad.</summary>
+    public static ProgressPoint? FirstNonFinite(IReadOnlyList<ProgressPoint> points) =>
+        points.Where(p => p.Norm is { } n && !double.IsFinite(n)).Select(p => (ProgressPoint?)p).FirstOrDefault();
+
+    /// <summary>Why a run is held for a non-finite norm.</summary>
+    public static string NonFiniteReason(ProgressPoint point) =>
+        $"constraint norm not finite ({(double.IsNaN(point.Norm!.Value) ? "nan" : "inf")} at t = {point.Time.ToString("0.#", System.Globalization.CultureInfo.InvariantCulture)} M): the run has gone bad";
 
     /// <summary>
     /// True when the norm grows steadily: growth rate above <paramref name="limit"/> per M with R^2 of at least

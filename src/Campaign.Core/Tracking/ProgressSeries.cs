@@ -11,7 +11,8 @@ public static class ProgressSeries
 {
     /// <summary>
     /// Lines "t [norm]" (whitespace separated, '#' comments). A line that does not parse is skipped (the last one
-    /// may be half-written); so are non-finite values.
+    /// may be half-written); so is a non-finite t. A non-finite norm ("nan", "inf", as C and Fortran print them)
+    /// is kept: it is the clearest sign of a run gone bad.
     /// </summary>
     public static IReadOnlyList<ProgressPoint> FromColumns(string text)
     {
@@ -30,11 +31,27 @@ public static class ProgressSeries
                 continue;
             }
 
-            double? norm = parts.Length > 1 && double.TryParse(parts[1], NumberStyles.Float, CultureInfo.InvariantCulture, out var n) && double.IsFinite(n) ? n : null;
+            double? norm = parts.Length > 1 ? Norm(parts[1]) : null;
             points.Add(new ProgressPoint(t, norm));
         }
 
         return points;
+    }
+
+    /// <summary>A norm as printed: a number, or a non-finite value in C's or Fortran's spelling; null when it is neither.</summary>
+    public static double? Norm(string text)
+    {
+        if (double.TryParse(text, NumberStyles.Float, CultureInfo.InvariantCulture, out var n))
+        {
+            return n;
+        }
+
+        return text.TrimStart('+', '-').ToLowerInvariant() switch
+        {
+            "nan" or "nan(ind)" or "nanq" or "nans" => double.NaN,
+            "inf" or "infinity" => text.StartsWith('-') ? double.NegativeInfinity : double.PositiveInfinity,
+            _ => null,
+        };
     }
 
     /// <summary>Matches of <paramref name="pattern"/> (named groups "t" and optional "norm") over a log.</summary>
@@ -47,7 +64,7 @@ public static class ProgressSeries
             if (double.TryParse(match.Groups["t"].Value, NumberStyles.Float, CultureInfo.InvariantCulture, out var t) && double.IsFinite(t))
             {
                 var normGroup = match.Groups["norm"];
-                double? norm = normGroup.Success && double.TryParse(normGroup.Value, NumberStyles.Float, CultureInfo.InvariantCulture, out var n) && double.IsFinite(n) ? n : null;
+                double? norm = normGroup.Success ? Norm(normGroup.Value) : null;
                 points.Add(new ProgressPoint(t, norm));
             }
         }

@@ -24,7 +24,8 @@ public enum NextStep
 /// <param name="FailuresWithProgress">Failures in a row so far that still made progress.</param>
 /// <param name="FailuresWithoutProgress">Failures in a row so far without progress.</param>
 /// <param name="ShortSegments">Segments in a row so far that were too short (ended by the warning before any progress).</param>
-public sealed record SegmentEnd(string Ending, double ProgressBefore, double ProgressAfter, double Target, bool DoneMarker, int FailuresWithProgress, int FailuresWithoutProgress, int ShortSegments = 0);
+/// <param name="GoneBad">Why the run's output shows it has gone bad (a non-finite norm), or null.</param>
+public sealed record SegmentEnd(string Ending, double ProgressBefore, double ProgressAfter, double Target, bool DoneMarker, int FailuresWithProgress, int FailuresWithoutProgress, int ShortSegments = 0, string? GoneBad = null);
 
 /// <summary>The restart rules (docs/tracking.md), as a pure function.</summary>
 public static class SegmentDecision
@@ -41,6 +42,11 @@ public static class SegmentDecision
     /// <summary>Decides the next step and the failure counters after it.</summary>
     public static (NextStep Step, string Why, int FailuresWithProgress, int FailuresWithoutProgress) Decide(SegmentEnd end, TrackingSettings settings)
     {
+        if (end.GoneBad is { } bad)
+        {
+            return (NextStep.Hold, bad, end.FailuresWithProgress, end.FailuresWithoutProgress); // never finished, never logged as completed
+        }
+
         if (end.DoneMarker || end.ProgressAfter >= end.Target * (1 - 1e-9))
         {
             return (NextStep.Finish, end.DoneMarker ? "done marker written" : $"reached t = {end.ProgressAfter:0.#} M of {end.Target:0.#} M", 0, 0);

@@ -229,7 +229,8 @@ public sealed class TrackedRun
     /// <param name="describe">What ended, for the event ("segment 3 (job 42) ended TIMEOUT").</param>
     /// <param name="settings">The restart rules' limits.</param>
     /// <param name="at">Now.</param>
-    public (NextStep Step, RunTransition Transition) EndSegment(string ending, double startT, double latest, bool doneMarker, bool othersOpen, string describe, TrackingSettings settings, DateTimeOffset at)
+    /// <param name="goneBad">Why its output shows it has gone bad (held, never finished), or null.</param>
+    public (NextStep Step, RunTransition Transition) EndSegment(string ending, double startT, double latest, bool doneMarker, bool othersOpen, string describe, TrackingSettings settings, DateTimeOffset at, string? goneBad = null)
     {
         Progress = Math.Max(Progress, latest);
         if (!State.IsActive())
@@ -237,7 +238,7 @@ public sealed class TrackedRun
             return (NextStep.Continue, Note(describe, at));
         }
 
-        var end = new SegmentEnd(ending, startT, Progress, TargetLength, doneMarker, FailuresWithProgress, FailuresWithoutProgress, ShortSegments);
+        var end = new SegmentEnd(ending, startT, Progress, TargetLength, doneMarker, FailuresWithProgress, FailuresWithoutProgress, ShortSegments, goneBad);
         var (step, why, withProgress, without) = SegmentDecision.Decide(end, settings);
         FailuresWithProgress = withProgress;
         FailuresWithoutProgress = without;

@@ -35,7 +35,8 @@ internal static class EndSegments
             segment.End(status.State.ToString(), status.NativeState, status.ExitCode, status.Signal, status.Elapsed, charged, c.Now);
             TrackingStore.Save(c.Db, tx, segment);
             c.Ended++;
-            (step, var transition) = run.EndSegment(ending, segment.StartT, latest, folder.IsDone, others.Count > 0, $"segment {segment.Number} (job {segment.JobId}) ended {status.NativeState}{exit}", c.Settings, c.Now);
+            var goneBad = Health.FirstNonFinite(points) is { } bad ? Health.NonFiniteReason(bad) : null;
+            (step, var transition) = run.EndSegment(ending, segment.StartT, latest, folder.IsDone, others.Count > 0, $"segment {segment.Number} (job {segment.JobId}) ended {status.NativeState}{exit}", c.Settings, c.Now, goneBad);
             c.Save(tx, run, transition.Changed || run.State.IsActive() || step != NextStep.Continue ? transition : null);
             if (step == NextStep.Finish)
             {

@@ -38,6 +38,12 @@ internal static class WatchHealth
             c.Commit(tx => c.Save(tx, run, null));
         }
 
+        if (Health.FirstNonFinite(points) is { } bad)
+        {
+            await HoldAndCancel(c, run, segment, Health.NonFiniteReason(bad), "bad", cancellationToken).ConfigureAwait(false);
+            return;
+        }
+
         if (Health.IsGoingBad(points, c.Settings.GrowthWindow, c.Settings.GrowthRateLimit, out var rate))
         {
             var why = $"constraint norm growing steadily: rate {rate.ToString("G3", CultureInfo.InvariantCulture)} per M (doubling every {(Math.Log(2) / rate).ToString("0", CultureInfo.InvariantCulture)} M) over the last {c.Settings.GrowthWindow} reports";

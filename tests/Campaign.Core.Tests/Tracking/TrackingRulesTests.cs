@@ -90,10 +90,10 @@ public class TrackingRulesTests
     }
 
     [Fact]
-    public void Progress_columns_skip_comments_and_drop_non_finite_norms()
+    public void Progress_columns_skip_comments_and_keep_non_finite_norms()
     {
         var points = ProgressSeries.FromColumns("# t norm\n10 1e-6\n20 2e-6\n30 NaN\n4");
-        Assert.Equal(new[] { new ProgressPoint(10, 1e-6), new ProgressPoint(20, 2e-6), new ProgressPoint(30, null), new ProgressPoint(4, null) }, points);
+        Assert.Equal(new[] { new ProgressPoint(10, 1e-6), new ProgressPoint(20, 2e-6), new ProgressPoint(30, double.NaN), new ProgressPoint(4, null) }, points);
         var fromLog = ProgressSeries.FromLog("step 1 t=12.5 |C|=3e-7\nnoise\nstep 2 t=25 |C|=4e-7\n", @"t=(?<t>[0-9.]+) \|C\|=(?<norm>[0-9.e-]+)");
         Assert.Equal(new[] { new ProgressPoint(12.5, 3e-7), new ProgressPoint(25, 4e-7) }, fromLog);
     }
@@ -128,5 +128,22 @@ public class TrackingRulesTests
     public void A_job_ended_by_the_warning_signal_is_recognised_from_its_exit_or_its_signal(int exit, int? signal, bool expected)
     {
         Assert.Equal(expected, Signals.EndedBy(Signals.Number("USR1")!.Value, exit, signal));
+    }
+
+    [Fact]
+    public void A_non_finite_norm_as_C_or_Fortran_prints_it_is_kept_and_holds_the_run_even_at_its_done_marker()
+    {
+        var points = ProgressSeries.FromColumns("10 1e-6\n50 nan\n60 -NaN\n70 inf\n80 Infinity\n90 1e-6\n");
+        Assert.Equal(6, points.Count);
+        Assert.True(double.IsNaN(points[1].Norm!.Value));
+        Assert.True(double.IsNaN(points[2].Norm!.Value));
+        Assert.Equal(double.PositiveInfinity, points[3].Norm);
+        Assert.Equal(50, Health.FirstNonFinite(points)!.Value.Time);
+        Assert.Null(Health.FirstNonFinite(ProgressSeries.FromColumns("10 1e-6\n20\n")));
+
+        var end = new SegmentEnd("completed", 0, 400, 5000, DoneMarker: true, 0, 0, 0, Health.NonFiniteReason(points[1]));
+        var (step, why, _, _) = SegmentDecision.Decide(end, new TrackingSettings());
+        Assert.Equal(NextStep.Hold, step);
+        Assert.Equal("constraint norm not finite (nan at t = 50 M): the run has gone bad", why);
     }
 }
