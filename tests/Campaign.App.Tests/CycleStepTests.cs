@@ -107,4 +107,40 @@ public sealed class CycleStepTests : IDisposable
         Assert.DoesNotContain('\n', fault.Message);
         Assert.Equal(runs.Count - 1, TrackingStore.Segments(workspace.Connection).Count);
     }
+
+    [Fact]
+    public void A_run_given_up_while_its_submission_was_unconfirmed_stays_given_up_and_its_job_is_cancelled()
+    {
+        // Regression (faults issue, item 5): the events showed queued -> failed (abandoned), then failed -> planned
+        // (segment 1 never reached ...), then a new job.
+        var runs = new RunService(_clock, BatchAccess.Given(m => _machines[m]));
+        string runId;
+        using (var workspace = Workspace.Open(Ws, _clock))
+        {
+            runId = TrackingStore.Runs(workspace.Connection).First(r => r.Machine == Cluster).RunId;
+        }
+
+        _machines[Cluster].LoseAnswers = true; // the job is queued, the answer never comes back
+        runs.Cycle(Ws);
+        using (var workspace = Workspace.Open(Ws, _clock))
+        {
+            Assert.Contains(TrackingStore.SegmentsOf(workspace.Connection, runId), s => s.Phase == SegmentPhase.Intent);
+        }
+
+        runs.Abandon(new RunSelection(Ws, new[] { runId }, null, null));
+        _machines[Cluster].LoseAnswers = false;
+        for (var i = 0; i < 3; i++)
+        {
+            _clock.Advance(TimeSpan.FromHours(2));
+            runs.Cycle(Ws);
+        }
+
+        using var db = Workspace.Open(Ws, _clock);
+        Assert.Equal(RunState.Failed, TrackingStore.Run(db.Connection, runId)!.State);
+        var segments = TrackingStore.SegmentsOf(db.Connection, runId);
+        var only = Assert.Single(segments); // no second job for the given-up run
+        Assert.Equal("abandoned", only.CancelReason);
+        Assert.Contains(only.JobId!, _machines[Cluster].Cancelled);
+        Assert.DoesNotContain(TrackingStore.Events(db.Connection, runId), e => e.FromState == "failed" && e.ToState != "failed");
+    }
 }

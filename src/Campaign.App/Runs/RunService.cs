@@ -115,22 +115,62 @@ public sealed class RunService
         var changes = new List<RunChange>();
         foreach (var run in chosen)
         {
-            if (batch is not null)
-            {
-                foreach (var segment in TrackingStore.SegmentsOf(workspace.Connection, run.RunId).Where(s => s.Phase == SegmentPhase.Submitted && s.JobId is not null))
-                {
-                    batch[run.Machine].CancelAsync(segment.JobId!, CancellationToken.None).GetAwaiter().GetResult();
-                }
-            }
-
             using var tx = workspace.Connection.BeginTransaction();
             var previous = run.State;
+            if (batch is not null)
+            {
+                Settle(workspace, tx, batch[run.Machine], run);
+            }
+
             TrackingStore.Save(workspace.Connection, tx, run, to == RunState.Failed ? run.Abandon(at) : run.Release(at));
             tx.Commit();
             changes.Add(new RunChange(run.RunId, previous, to));
         }
 
         return changes;
+    }
+
+    /// <summary>
+    /// Cancels every open job of a run being given up: submitted ones by id, and unconfirmed submissions (intents)
+    /// looked up by name first; an intent the batch system does not have is dropped. An intent that cannot be
+    /// looked up now stays, and the next cycle cancels it if it turns up (a given-up run never comes back).
+    /// </summary>
+    private static void Settle(Workspace workspace, Microsoft.Data.Sqlite.SqliteTransaction tx, Batch.IBatchSystem batch, TrackedRun run)
+    {
+        foreach (var segment in TrackingStore.SegmentsOf(workspace.Connection, run.RunId, tx).Where(s => s.IsOpen))
+        {
+            var id = segment.JobId;
+            if (segment.Phase == SegmentPhase.Intent)
+            {
+                try
+                {
+                    id = batch.FindAsync(segment.JobName, CancellationToken.None).GetAwaiter().GetResult();
+                }
+                catch (Batch.BatchSystemException)
+                {
+                    continue;
+                }
+
+                if (id is null)
+                {
+                    TrackingStore.DeleteIntent(workspace.Connection, tx, segment.Id);
+                    continue;
+                }
+
+                segment.Submitted(id, "");
+            }
+
+            segment.CancelFor("abandoned");
+            TrackingStore.Save(workspace.Connection, tx, segment);
+            try
+            {
+                batch.CancelAsync(id!, CancellationToken.None).GetAwaiter().GetResult();
+            }
+            catch (Batch.BatchSystemException)
+            {
+                // Recorded as cancelled by us: the next cycle that sees the job alive cancels it again.
+            }
+        }
     }
 
     private static IReadOnlyList<TrackedRun> Select(IReadOnlyDictionary<string, TrackedRun> runs, RunSelection selection, Func<RunState, bool> eligible, string expected)

@@ -194,8 +194,12 @@ public sealed class TrackedRun
     /// <summary>Puts the run back as it was before a submission that never reached a broken machine.</summary>
     public RunTransition Restore(RunState state, string reason, string why, DateTimeOffset at) => Move(state, reason, why, at);
 
-    /// <summary>An unconfirmed submission was found in the batch system (queued) or never reached it (planned).</summary>
-    public RunTransition IntentResolved(bool found, string why, DateTimeOffset at) => Move(found ? RunState.Queued : RunState.Planned, Reason, why, at);
+    /// <summary>
+    /// An unconfirmed submission was found in the batch system (queued) or never reached it (planned). A run that
+    /// has finished or was given up stays so: resolving an intent never brings it back.
+    /// </summary>
+    public RunTransition IntentResolved(bool found, string why, DateTimeOffset at) =>
+        State is RunState.Finished or RunState.Failed ? Note(why, at) : Move(found ? RunState.Queued : RunState.Planned, Reason, why, at);
 
     /// <summary>New progress read from its folder.</summary>
     public void NoteProgress(double t, double? norm, DateTimeOffset at)

@@ -26,20 +26,25 @@ internal static class RecoverIntents
                 continue;
             }
 
+            var settled = run.State is RunState.Finished or RunState.Failed;
             c.Commit(tx =>
             {
                 if (id is not null)
                 {
                     segment.Submitted(id, segment.JobState);
                     TrackingStore.Save(c.Db, tx, segment);
-                    c.Save(tx, run, run.IntentResolved(true, $"segment {segment.Number} found in the batch system as job {id} (its submission was not recorded before a stop)", c.Now));
+                    c.Save(tx, run, run.IntentResolved(true, $"segment {segment.Number} found in the batch system as job {id} (its submission was not recorded before a stop){(settled ? $"; the run is {run.State.Name()}: cancelling it" : "")}", c.Now));
                 }
                 else
                 {
                     TrackingStore.DeleteIntent(c.Db, tx, segment.Id);
-                    c.Save(tx, run, run.IntentResolved(false, $"segment {segment.Number} never reached the batch system; it will be submitted again", c.Now));
+                    c.Save(tx, run, run.IntentResolved(false, $"segment {segment.Number} never reached the batch system{(settled ? "" : "; it will be submitted again")}", c.Now));
                 }
             });
+            if (id is not null && settled)
+            {
+                await c.Guarded(run.Machine, $"cancelling job {id} of {run.State.Name()} run {run.RunId}", () => c.Cancel(run, segment, "superfluous", cancellationToken)).ConfigureAwait(false);
+            }
         }
     }
 }

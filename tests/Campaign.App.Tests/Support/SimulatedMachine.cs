@@ -34,6 +34,12 @@ public sealed class SimulatedMachine : IBatchSystem
     /// <summary>Job names this machine refuses, as a controller refuses a job's request (its account, its size).</summary>
     public HashSet<string> Refused { get; } = new(StringComparer.Ordinal);
 
+    /// <summary>While true a submission reaches the queue and then its answer is lost (as when sbatch times out).</summary>
+    public bool LoseAnswers { get; set; }
+
+    /// <summary>Ids of jobs that were cancelled.</summary>
+    public IReadOnlyCollection<string> Cancelled => _jobs.Values.Where(j => j.Final?.State == JobState.Cancelled).Select(j => j.Id).ToList();
+
     /// <summary>Calls made while down.</summary>
     public int RefusedCalls { get; private set; }
 
@@ -53,6 +59,11 @@ public sealed class SimulatedMachine : IBatchSystem
 
         var id = Interlocked.Increment(ref _nextId).ToString(CultureInfo.InvariantCulture);
         _jobs[id] = new Job(id, request, _clock.GetUtcNow());
+        if (LoseAnswers)
+        {
+            throw new BatchSystemException(BatchErrorKind.Transient, "sbatch: error: Batch job submission failed: Socket timed out on send/recv operation");
+        }
+
         return Task.FromResult(id);
     }
 
