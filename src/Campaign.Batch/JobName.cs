@@ -1,13 +1,15 @@
 using System.Globalization;
+using System.Security.Cryptography;
 using System.Text;
 using System.Text.RegularExpressions;
 
 namespace Campaign.Batch;
 
 /// <summary>
-/// Job names that carry the run id and segment number and are safe for every batch system:
-/// "cmp.RUNID.sNNN", with RUNID reduced to letters, digits, '-' and '_' (other characters become '_'),
-/// at most 64 characters in all. No quoting is ever needed.
+/// Job names that carry the run id and segment number and are safe for every batch system: "cmp.RUNID.sNNN", at
+/// most 64 characters, made of letters, digits, '.', '-' and '_' only, so no quoting is ever needed. The mapping
+/// is one to one: run ids (letters, digits, '.', '-', '_') are kept as they are, and an id too long for the room
+/// left keeps its start and ends in a hash of the whole id, so two runs never share a job name.
 /// </summary>
 public static partial class JobName
 {
@@ -20,12 +22,19 @@ public static partial class JobName
         var clean = new StringBuilder();
         foreach (var c in runId)
         {
-            clean.Append(char.IsAsciiLetterOrDigit(c) || c is '-' or '_' ? c : '_');
+            clean.Append(char.IsAsciiLetterOrDigit(c) || c is '-' or '_' or '.' ? c : '_');
         }
 
         var suffix = ".s" + segment.ToString("D3", CultureInfo.InvariantCulture);
         var room = 64 - "cmp.".Length - suffix.Length;
-        var id = clean.Length > room ? clean.ToString(0, room) : clean.ToString();
+        var id = clean.ToString();
+        if (id.Length > room || id != runId)
+        {
+            // Too long, or with characters a job name cannot carry: keep a readable start, add a hash of the whole id.
+            var hash = Convert.ToHexStringLower(SHA256.HashData(Encoding.UTF8.GetBytes(runId)))[..10];
+            id = id[..Math.Min(id.Length, room - hash.Length - 1)] + "-" + hash;
+        }
+
         return "cmp." + id + suffix;
     }
 

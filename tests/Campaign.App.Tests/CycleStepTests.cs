@@ -143,4 +143,23 @@ public sealed class CycleStepTests : IDisposable
         Assert.Contains(only.JobId!, _machines[Cluster].Cancelled);
         Assert.DoesNotContain(TrackingStore.Events(db.Connection, runId), e => e.FromState == "failed" && e.ToState != "failed");
     }
+
+    [Fact]
+    public void Two_valid_ids_that_differ_in_a_dot_and_an_underscore_both_run()
+    {
+        // Regression (faults issue, item 7): "a.b" and "a_b" got one job name; every cycle then stopped on a
+        // UNIQUE constraint and an unrelated run stayed planned for good.
+        using var other = new TempFolder();
+        var ws = Path.Combine(other.Path, "ws");
+        TestWorkspace.Create(ws, _clock);
+        File.WriteAllText(Path.Combine(ws, "two.csv"), "id,q,chi1z,omega0,levels,cores,cluster,core_hours\nsm.a,2,0,0.02,1,128,halyard,1000\nsm_a,3,0,0.02,1,128,halyard,1000\nsm-b,4,0,0.02,1,128,halyard,1000\n");
+        new PlanService(_clock).Select(new SelectRequest(ws, Path.Combine(ws, "two.csv"), "two.csv", SelectionObjective.Coverage, 1e6, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
+        Assert.Equal(3, new TrackService(_clock).Track(new TrackRequest(ws, null, null, null, false)).Added.Count);
+
+        var report = new RunService(_clock, BatchAccess.Given(m => _machines[m])).Cycle(ws);
+        Assert.Equal(3, report.Submitted);
+        Assert.DoesNotContain(report.Messages, m => m.Contains("not submitted", StringComparison.Ordinal));
+        using var db = Workspace.Open(ws, _clock);
+        Assert.Equal(3, TrackingStore.Segments(db.Connection).Select(s => s.JobName).Distinct().Count());
+    }
 }

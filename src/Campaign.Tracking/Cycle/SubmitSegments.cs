@@ -52,9 +52,18 @@ internal static class SubmitSegments
             }
 
             var number = lastNumber.GetValueOrDefault(run.RunId) + 1;
-            if (await Submit(c, run, profile, wallHours, worst, number, prequeue ? open[0].JobId : null, cancellationToken).ConfigureAwait(false))
+            try
             {
-                ledger.Commit(run.Machine, worst);
+                if (await Submit(c, run, profile, wallHours, worst, number, prequeue ? open[0].JobId : null, cancellationToken).ConfigureAwait(false))
+                {
+                    ledger.Commit(run.Machine, worst);
+                }
+            }
+            catch (Exception e) when (e is Microsoft.Data.Sqlite.SqliteException { SqliteErrorCode: 19 } or DirectoryNotFoundException or UnauthorizedAccessException)
+            {
+                // One run's trouble (a constraint its segment breaks, a run folder that cannot be written) never
+                // stops the cycle for the others; it is reported and tried again next cycle.
+                c.Messages.Add($"{run.RunId}: segment {number} not submitted this cycle: {e.Message}");
             }
         }
     }

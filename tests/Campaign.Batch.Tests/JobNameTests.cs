@@ -1,0 +1,25 @@
+namespace Campaign.Batch.Tests;
+
+public class JobNameTests
+{
+    [Fact]
+    public void Ids_that_differ_only_in_dots_and_underscores_get_different_names()
+    {
+        // Regression (faults issue, item 7): "a.b" and "a_b" both became cmp.a_b_L1.s001.
+        Assert.NotEqual(JobName.For("a.b.L1", 1), JobName.For("a_b.L1", 1));
+        Assert.Equal("cmp.a.b.L1.s001", JobName.For("a.b.L1", 1));
+    }
+
+    [Fact]
+    public void Long_ids_keep_a_readable_start_and_stay_distinct_and_valid()
+    {
+        var common = new string('x', 50);
+        var one = JobName.For(common + "1.L1.r1", 12);
+        var two = JobName.For(common + "2.L1.r1", 12);
+        Assert.NotEqual(one, two);
+        Assert.All(new[] { one, two }, n => Assert.True(JobName.IsValid(n), n));
+        Assert.All(new[] { one, two }, n => Assert.StartsWith("cmp.xxxx", n, StringComparison.Ordinal));
+        Assert.All(new[] { one, two }, n => Assert.EndsWith(".s012", n, StringComparison.Ordinal));
+        Assert.False(JobName.IsValid("cmp.a.s001\n"));
+    }
+}
