@@ -81,6 +81,24 @@ public static class RunLogStore
             transaction);
     }
 
+    /// <summary>The source of each stored run among <paramref name="runIds"/> ("campaign tracking" for runs the campaign finished, the file name for imports).</summary>
+    public static IReadOnlyDictionary<string, string> Sources(SqliteConnection connection, IEnumerable<string> runIds, SqliteTransaction? transaction = null)
+    {
+        var result = new Dictionary<string, string>(StringComparer.Ordinal);
+        foreach (var chunk in runIds.Chunk(500))
+        {
+            foreach (var (id, source) in connection.Query<(string, string)>("SELECT run_id, source FROM run_logs WHERE run_id IN @chunk", new { chunk }, transaction))
+            {
+                result[id] = source;
+            }
+        }
+
+        return result;
+    }
+
+    /// <summary>The source written for runs the campaign tracked to their end.</summary>
+    public const string TrackingSource = "campaign tracking";
+
     /// <summary>Every stored run, ordered by id.</summary>
     public static IReadOnlyList<RunLog> All(SqliteConnection connection) =>
         connection.Query<Row>("SELECT * FROM run_logs ORDER BY run_id").Select(ToLog).ToList();

@@ -172,9 +172,20 @@ public static class TrackingStore
             new { At = Text(transition.At), transition.RunId, From = transition.From?.Name() ?? "", To = transition.To.Name(), transition.Why },
             transaction);
 
-    /// <summary>Writes a finished run into the run logs (replacing an earlier row of the same id), in the caller's transaction.</summary>
-    public static void LogFinishedRun(SqliteConnection connection, SqliteTransaction transaction, RunLog log, DateTimeOffset at) =>
-        RunLogStore.Upsert(connection, transaction, log, "{}", "campaign tracking", Text(at));
+    /// <summary>
+    /// Writes a finished run into the run logs, in the caller's transaction; returns false (and writes nothing)
+    /// when a run imported from a file has the same id: an imported log is never overwritten.
+    /// </summary>
+    public static bool LogFinishedRun(SqliteConnection connection, SqliteTransaction transaction, RunLog log, DateTimeOffset at)
+    {
+        if (RunLogStore.Sources(connection, new[] { log.RunId }, transaction).TryGetValue(log.RunId, out var source) && source != RunLogStore.TrackingSource)
+        {
+            return false;
+        }
+
+        RunLogStore.Upsert(connection, transaction, log, "{}", RunLogStore.TrackingSource, Text(at));
+        return true;
+    }
 
     /// <summary>The stored name of a segment phase.</summary>
     public static string NameOf(SegmentPhase phase) => phase switch

@@ -77,4 +77,31 @@ public sealed class PlanAndReportTests : IDisposable
         Assert.StartsWith("--only no-such-config: not a configuration of plan 1: expected one of ", Assert.Single(error.Problems), StringComparison.Ordinal);
         Assert.Empty(new StatusService(_clock).Status(Ws, 0).Runs); // nothing was changed
     }
+
+    [Fact]
+    public void Tracking_a_run_whose_id_an_imported_log_has_is_refused_and_the_import_is_never_overwritten()
+    {
+        // Regression (faults issue, item 3): a finished tracked run replaced an imported log of the same id without a word.
+        new PlanService(_clock).Select(new SelectRequest(Ws, Path.Combine(Ws, "candidates.csv"), "candidates.csv", SelectionObjective.Coverage, null, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
+        var config = new PlanService(_clock).Current(Ws)!.ConfigIds[0];
+        var file = Path.Combine(Ws, "older.csv");
+        File.WriteAllText(file, "run_id,q,chi1x,chi1y,chi1z,chi2x,chi2y,chi2z,omega0,level,cores,cluster,wall_hours,outcome,core_hours,t_end,segments,checkpoint_gb,output_gb,started,finished,notes\n"
+            + $"{config}.L1,7,0,0,0,0,0,0,0.0162,1,96,gunwale,1597,completed,122661,8165,68,5.77,12.6,2025-01-09T22:00:00Z,2025-05-08T13:22:30Z,an older run of ours\n");
+        new RunLogService(_clock).Import(new ImportLogsRequest(Ws, file, "older.csv", false));
+
+        var error = Assert.Throws<InvalidInputException>(() => new TrackService(_clock).Track(new TrackRequest(Ws, null, null, new[] { config }, false)));
+        Assert.StartsWith($"{config}.L1: a run log imported from older.csv has this id: expected run ids that are new", Assert.Single(error.Problems), StringComparison.Ordinal);
+        Assert.Empty(new StatusService(_clock).Status(Ws, 0).Runs);
+
+        using var db = Store.Workspace.Open(Ws, _clock);
+        var log = Store.RunLogStore.All(db.Connection).Single(l => l.RunId == config + ".L1");
+        using (var tx = db.Connection.BeginTransaction())
+        {
+            Assert.False(Store.TrackingStore.LogFinishedRun(db.Connection, tx, log with { Machine = "halyard", WallHours = 1 }, _clock.GetUtcNow()));
+            tx.Commit();
+        }
+
+        var kept = Store.RunLogStore.All(db.Connection).Single(l => l.RunId == config + ".L1");
+        Assert.Equal((7.0, "gunwale", 1597.0), (kept.Configuration.Q.Value, kept.Machine, kept.WallHours));
+    }
 }

@@ -63,6 +63,14 @@ public sealed class TrackService
             throw new InvalidInputException(problems);
         }
 
+        // A run id that an imported run log already has would make the finished run's log collide with it.
+        var wanted = plan.Runs.Where(e => request.Only is null || request.Only.Contains(e.ConfigId)).Select(e => e.RunId).ToList();
+        var imported = RunLogStore.Sources(workspace.Connection, request.Rehearsal ? Array.Empty<string>() : wanted).Where(s => s.Value != RunLogStore.TrackingSource).ToList();
+        if (imported.Count > 0)
+        {
+            throw new InvalidInputException(imported.Select(s => $"{s.Key}: a run log imported from {s.Value} has this id: expected run ids that are new; rename the configuration in the candidate file (and re-plan), or the imported log's run_id (and import it again with --replace)").ToList());
+        }
+
         var existing = TrackingStore.Runs(workspace.Connection);
         var known = existing.Select(r => r.RunId).ToHashSet(StringComparer.Ordinal);
         var position = existing.Count == 0 ? 0 : existing.Max(r => r.Position) + 1;

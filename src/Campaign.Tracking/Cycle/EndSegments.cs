@@ -98,6 +98,9 @@ internal static class EndSegments
             outputGb > 0 ? outputGb : null,
             started,
             c.Now);
-        TrackingStore.LogFinishedRun(c.Db, tx, log, c.Now);
+        if (!TrackingStore.LogFinishedRun(c.Db, tx, log, c.Now))
+        {
+            TrackingStore.Event(c.Db, tx, new RunTransition(run.RunId, run.State, run.State, "not written into the run logs: an imported run has the same id, and an import is never overwritten", c.Now));
+        }
     }
 }
