@@ -246,6 +246,25 @@ public sealed class TrackingTests : IDisposable
     }
 
     [Fact]
+    public void A_code_that_ignores_the_warning_and_never_advances_is_held_after_two_timed_out_segments()
+    {
+        // Regression (faults issue, item 10): such a code gave 15 segments in 60 s with no progress and was never held.
+        Prepare("sm-q1-a00", rehearsal: true);
+        File.WriteAllText(Ws("stuck.sh"), "#!/bin/sh\ntrap '' USR1\nsleep 60\n");
+        File.SetUnixFileMode(Ws("stuck.sh"), (UnixFileMode)Convert.ToInt32("755", 8));
+        var config = File.ReadAllText(Ws("campaign.toml")).Replace("script = \"run-segment.sh\"", "script = \"stuck.sh\"", StringComparison.Ordinal);
+        File.WriteAllText(Ws("campaign.toml"), config);
+        TickUntilIdle(TimeSpan.FromSeconds(120));
+
+        foreach (var run in Status().EnumerateArray())
+        {
+            Assert.Equal("held", run.GetProperty("state").GetString());
+            Assert.StartsWith("segment timed out without progress 2 times in a row", run.GetProperty("reason").GetString(), StringComparison.Ordinal);
+            Assert.Equal(2, run.GetProperty("segments").GetArrayLength());
+        }
+    }
+
+    [Fact]
     public void The_budget_guard_stops_submission_at_the_line_and_says_which_runs_wait()
     {
         // One segment on the workstation may charge 1 core x 3 s = 1/1200 core-hour; the allocation has room for two.

@@ -63,12 +63,13 @@ public static class SegmentDecision
 
         if (Interruptions.Contains(end.Ending))
         {
-            if (progressed || end.Ending != "completed")
+            // A segment that ended cleanly or ran into its wall time without any progress did nothing: it counts as a
+            // failure without progress (else a code that never advances would be resubmitted for ever). The
+            // interruptions of the machine (pre-emption, node failure, requeue) and the stall rule's own cancel do not.
+            if (progressed || end.Ending is not ("completed" or "timed_out"))
             {
                 return (NextStep.Continue, $"segment {end.Ending.Replace('_', ' ')}; continue from the newest checkpoint", 0, progressed ? 0 : end.FailuresWithoutProgress);
             }
-
-            // Ended cleanly but did nothing: count it as a failure without progress.
         }
 
         if (progressed)

@@ -23,7 +23,7 @@ internal static class EndSegments
         var latest = points.Count > 0 ? Math.Max(points[^1].Time, run.Progress) : run.Progress;
         var others = TrackingStore.SegmentsOf(c.Db, run.RunId).Where(s => s.IsOpen && s.Id != segment.Id).ToList();
         var ending = Ending(status, segment);
-        if (ending != "completed" && latest <= segment.StartT && Signals.Number(c.Settings.WarningSignal) is { } warning && Signals.EndedBy(warning, status.ExitCode, status.Signal))
+        if (latest <= segment.StartT && WarnedBeforeProgress(c.Settings, segment, status, ending))
         {
             ending = "too_short";
         }
@@ -59,6 +59,27 @@ internal static class EndSegments
                 await c.Cancel(run, other, "superfluous", cancellationToken).ConfigureAwait(false);
             }
         }
+    }
+
+    /// <summary>
+    /// True when the warning signal ended the segment: the signal (or the shell's 128 + its number) is what it ended
+    /// by, or it exited cleanly once the warning time had come (a code that checkpointed on the warning). Without
+    /// progress, such a segment was too short for the code to start.
+    /// </summary>
+    private static bool WarnedBeforeProgress(TrackingSettings settings, JobSegment segment, JobStatus status, string ending)
+    {
+        if (settings.WarningSignal.Length == 0 || Signals.Number(settings.WarningSignal) is not { } warning)
+        {
+            return false;
+        }
+
+        if (ending != "completed" && Signals.EndedBy(warning, status.ExitCode, status.Signal))
+        {
+            return true;
+        }
+
+        var warnedAt = segment.Wall - TimeSpan.FromSeconds(settings.WarningSeconds);
+        return ending == "completed" && warnedAt > TimeSpan.Zero && status.Elapsed is { } elapsed && elapsed >= warnedAt - TimeSpan.FromSeconds(1);
     }
 
     private static string Ending(JobStatus status, JobSegment segment) => status.State switch

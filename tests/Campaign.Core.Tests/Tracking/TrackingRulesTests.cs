@@ -146,4 +146,22 @@ public class TrackingRulesTests
         Assert.Equal(NextStep.Hold, step);
         Assert.Equal("constraint norm not finite (nan at t = 50 M): the run has gone bad", why);
     }
+
+    [Fact]
+    public void Segments_that_run_into_their_wall_time_without_progress_count_as_failures_without_progress()
+    {
+        // Regression (faults issue, item 10): a code that ignores the warning and never advances was resubmitted for ever.
+        var settings = new TrackingSettings();
+        var first = SegmentDecision.Decide(new SegmentEnd("timed_out", 300, 300, 5000, false, 0, 0), settings);
+        Assert.Equal((NextStep.Continue, 1), (first.Step, first.FailuresWithoutProgress));
+        var second = SegmentDecision.Decide(new SegmentEnd("timed_out", 300, 300, 5000, false, 0, first.FailuresWithoutProgress), settings);
+        Assert.Equal(NextStep.Hold, second.Step);
+        Assert.StartsWith("segment timed out without progress 2 times in a row", second.Why, StringComparison.Ordinal);
+
+        // With progress a timeout is the normal end of a segment; a node failure is the machine's, not the run's.
+        Assert.Equal((NextStep.Continue, 0), Pick(SegmentDecision.Decide(new SegmentEnd("timed_out", 300, 900, 5000, false, 0, 1), settings)));
+        Assert.Equal((NextStep.Continue, 1), Pick(SegmentDecision.Decide(new SegmentEnd("node_failed", 300, 300, 5000, false, 0, 1), settings)));
+
+        static (NextStep, int) Pick((NextStep Step, string Why, int WithProgress, int Without) d) => (d.Step, d.Without);
+    }
 }
