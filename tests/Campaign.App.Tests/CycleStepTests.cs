@@ -162,4 +162,49 @@ public sealed class CycleStepTests : IDisposable
         using var db = Workspace.Open(ws, _clock);
         Assert.Equal(3, TrackingStore.Segments(db.Connection).Select(s => s.JobName).Distinct().Count());
     }
+
+    [Fact]
+    public void A_run_with_a_pre_queued_segment_stays_running_and_its_stall_is_still_caught()
+    {
+        // Regression (faults issue, item 9): with prequeue each cycle flipped the run queued -> running -> queued
+        // (two events and two notices a cycle) and the health checks, which look at running runs, never ran.
+        using var other = new TempFolder();
+        var ws = Path.Combine(other.Path, "ws");
+        TestWorkspace.Create(ws, _clock, "prequeue = true\n");
+        File.WriteAllText(Path.Combine(ws, "one.csv"), "id,q,chi1z,omega0,levels,cores,cluster,core_hours\nsm-a,2,0,0.02,1,128,halyard,100000\n");
+        new PlanService(_clock).Select(new SelectRequest(ws, Path.Combine(ws, "one.csv"), "one.csv", SelectionObjective.Coverage, 1e7, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
+        new TrackService(_clock).Track(new TrackRequest(ws, null, null, null, false));
+        var machines = new Dictionary<string, SimulatedMachine>(StringComparer.Ordinal);
+        foreach (var profile in Workspaces.WorkspaceAdmin.Settings(ws).Machines.Values)
+        {
+            machines[profile.Name] = new SimulatedMachine(_clock, profile, _ => 1000, TimeSpan.FromHours(1)); // 1000 h: many 48 h segments
+        }
+
+        var runs = new RunService(_clock, BatchAccess.Given(m => machines[m]));
+        for (var i = 0; i < 12; i++)
+        {
+            _clock.Advance(TimeSpan.FromHours(4));
+            runs.Cycle(ws);
+        }
+
+        using (var db = Workspace.Open(ws, _clock))
+        {
+            var events = TrackingStore.Events(db.Connection, "sm-a.L1");
+            Assert.Equal(0, events.Count(e => e.FromState == "running" && e.ToState == "queued")); // no segment ended yet
+            Assert.Equal(2, TrackingStore.SegmentsOf(db.Connection, "sm-a.L1").Count); // the running one and the pre-queued one
+            Assert.Equal(RunState.Running, TrackingStore.Run(db.Connection, "sm-a.L1")!.State);
+        }
+
+        // The code stops advancing: with stall_minutes = 2880 (48 h) the stall rule must still see it.
+        File.WriteAllText(Path.Combine(ws, "campaign.toml"), File.ReadAllText(Path.Combine(ws, "campaign.toml")).Replace("stall_minutes = 2880", "stall_minutes = 600", StringComparison.Ordinal));
+        machines["halyard"].Stalled.Add("sm-a.L1");
+        for (var i = 0; i < 8; i++)
+        {
+            _clock.Advance(TimeSpan.FromHours(4));
+            runs.Cycle(ws);
+        }
+
+        using var after = Workspace.Open(ws, _clock);
+        Assert.Contains(TrackingStore.Events(after.Connection, "sm-a.L1"), e => e.Why.Contains("no progress for", StringComparison.Ordinal));
+    }
 }

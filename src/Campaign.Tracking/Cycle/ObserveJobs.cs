@@ -25,10 +25,14 @@ internal static class ObserveJobs
             }
 
             c.Queries[group.Key] = c.Queries.GetValueOrDefault(group.Key) + 1;
+
+            // A run with a pre-queued segment has two open jobs: it is running while either runs, so the waiting one
+            // never flips it back to queued (and its health checks keep running).
+            var runningRuns = group.Where(s => statuses![s.JobId!].State is JobState.Running or JobState.Finishing).Select(s => s.RunId).ToHashSet(StringComparer.Ordinal);
             foreach (var segment in group.OrderBy(s => s.Number))
             {
                 var status = statuses![segment.JobId!];
-                await Observe(c, c.Runs[segment.RunId], segment, status, cancellationToken).ConfigureAwait(false);
+                await Observe(c, c.Runs[segment.RunId], segment, status, runningRuns.Contains(segment.RunId), cancellationToken).ConfigureAwait(false);
                 if (status.State.IsActive() && segment.CancelReason is { Length: > 0 })
                 {
                     // A cancel that did not get through before (the batch system was unreachable): try again.
@@ -38,7 +42,7 @@ internal static class ObserveJobs
         }
     }
 
-    private static async Task Observe(CycleContext c, TrackedRun run, JobSegment segment, JobStatus status, CancellationToken cancellationToken)
+    private static async Task Observe(CycleContext c, TrackedRun run, JobSegment segment, JobStatus status, bool runRunning, CancellationToken cancellationToken)
     {
         if (status.State == JobState.Unknown)
         {
@@ -59,7 +63,8 @@ internal static class ObserveJobs
 
         var running = status.State is JobState.Running or JobState.Finishing;
         var startedNow = running && segment.StartedAt is null;
-        var runChanges = run.State.IsActive() && run.State != (running ? RunState.Running : RunState.Queued);
+        runRunning |= running;
+        var runChanges = run.State.IsActive() && run.State != (runRunning ? RunState.Running : RunState.Queued);
         var segmentChanged = segment.Observe(status.State.ToString(), status.NativeState, running, c.Now);
         if (!segmentChanged && !runChanges)
         {
@@ -70,7 +75,7 @@ internal static class ObserveJobs
         {
             TrackingStore.Save(c.Db, tx, segment);
             var why = running ? $"segment {segment.Number} (job {segment.JobId}) running" : $"segment {segment.Number} (job {segment.JobId}) {status.NativeState.ToLowerInvariant()}";
-            if (run.Observe(running, startedNow, why, c.Now) is { } transition)
+            if (runChanges && run.Observe(runRunning, startedNow, why, c.Now) is { } transition)
             {
                 c.Save(tx, run, transition.Changed ? transition : null);
             }

@@ -34,6 +34,9 @@ public sealed class SimulatedMachine : IBatchSystem
     /// <summary>Job names this machine refuses, as a controller refuses a job's request (its account, its size).</summary>
     public HashSet<string> Refused { get; } = new(StringComparer.Ordinal);
 
+    /// <summary>Runs whose code has stopped advancing (alive, no progress).</summary>
+    public HashSet<string> Stalled { get; } = new(StringComparer.Ordinal);
+
     /// <summary>While true a submission reaches the queue and then its answer is lost (as when sbatch times out).</summary>
     public bool LoseAnswers { get; set; }
 
@@ -116,6 +119,18 @@ public sealed class SimulatedMachine : IBatchSystem
 
         var now = _clock.GetUtcNow();
         var start = job.Submitted + _queueWait;
+        if (job.Request.AfterAny is { } before && _jobs.TryGetValue(before, out var previous))
+        {
+            // afterany: it starts once the job it waits for has ended, in whatever state.
+            if (Advance(previous).State is JobState.Pending or JobState.Running || previous.Started is null)
+            {
+                return new JobStatus(job.Id, JobState.Pending, "PENDING", Name: job.Request.Name);
+            }
+
+            var ended = previous.Started.Value + (previous.Final!.Elapsed ?? TimeSpan.Zero);
+            start = ended > start ? ended : start;
+        }
+
         if (now < start)
         {
             return new JobStatus(job.Id, JobState.Pending, "PENDING", Name: job.Request.Name);
@@ -130,9 +145,9 @@ public sealed class SimulatedMachine : IBatchSystem
         }
 
         var target = Target(folder);
-        var pace = target / _hoursToFinish(run); // M per hour
+        var pace = Stalled.Contains(run) ? 0 : target / _hoursToFinish(run); // M per hour
         var wall = job.Request.WallTime;
-        var toTarget = TimeSpan.FromHours((target - job.StartT) / pace);
+        var toTarget = pace > 0 ? TimeSpan.FromHours((target - job.StartT) / pace) : TimeSpan.MaxValue;
         var ran = now - job.Started.Value;
         if (ran >= toTarget && toTarget <= wall)
         {
@@ -162,10 +177,22 @@ public sealed class SimulatedMachine : IBatchSystem
         return json.RootElement.GetProperty("target_length").GetDouble();
     }
 
-    private static double RestartPoint(JobRequest request) =>
-        request.Environment.TryGetValue("CAMPAIGN_RESTART", out var path) && File.Exists(path)
-            ? double.Parse(File.ReadAllText(path), CultureInfo.InvariantCulture)
-            : 0;
+    private static double RestartPoint(JobRequest request)
+    {
+        if (!request.Environment.TryGetValue("CAMPAIGN_RESTART", out var path))
+        {
+            return 0;
+        }
+
+        if (path == "newest")
+        {
+            // Decided when it starts, as the segment script does: the newest checkpoint with its marker.
+            var folder = Path.Combine(request.WorkingDirectory, "checkpoints");
+            path = Directory.Exists(folder) ? Directory.EnumerateFiles(folder, "ckpt-*.json").Where(f => File.Exists(f + ".ok")).Order(StringComparer.Ordinal).LastOrDefault() ?? "" : "";
+        }
+
+        return File.Exists(path) ? double.Parse(File.ReadAllText(path), CultureInfo.InvariantCulture) : 0;
+    }
 
     private static void Progress(string folder, Job job, double t, DateTimeOffset at)
     {

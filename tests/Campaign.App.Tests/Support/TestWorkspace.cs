@@ -7,11 +7,11 @@ namespace Campaign.App.Tests.Support;
 public static class TestWorkspace
 {
     /// <summary>Creates it in <paramref name="root"/>, with production-like tracking (segments as long as each machine allows).</summary>
-    public static void Create(string root, TimeProvider clock)
+    public static void Create(string root, TimeProvider clock, string extraTracking = "")
     {
         var demo = Path.Combine(RepositoryRoot.Path, "demo-campaign");
         var config = File.ReadAllText(Path.Combine(demo, "campaign.toml"));
-        config = Regex.Replace(config, @"\[tracking\][\s\S]*$", "[tracking]\nscript = \"run-segment.sh\"\nstall_minutes = 2880\n");
+        config = Regex.Replace(config, @"\[tracking\][\s\S]*$", "[tracking]\nscript = \"run-segment.sh\"\nstall_minutes = 2880\n" + extraTracking);
         var profiles = Directory.GetFiles(Path.Combine(RepositoryRoot.Path, "cluster-profiles"), "*.toml").ToDictionary(f => Path.GetFileName(f), File.ReadAllText);
         new WorkspaceAdmin(clock).Create(root, config, profiles, force: false);
         File.Copy(Path.Combine(demo, "run-logs.csv"), Path.Combine(root, "run-logs.csv"));
