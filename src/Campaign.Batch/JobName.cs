@@ -6,18 +6,19 @@ using System.Text.RegularExpressions;
 namespace Campaign.Batch;
 
 /// <summary>
-/// Job names that carry the run id and segment number and are safe for every batch system: "cmp.RUNID.sNNN", at
-/// most 64 characters, made of letters, digits, '.', '-' and '_' only, so no quoting is ever needed. The mapping
-/// is one to one: run ids (letters, digits, '.', '-', '_') are kept as they are, and an id too long for the room
-/// left keeps its start and ends in a hash of the whole id, so two runs never share a job name.
+/// Job names that carry the workspace, the run id and the segment number and are safe for every batch system:
+/// "cmp.WORKSPACE.RUNID.sNNN", at most 64 characters, made of letters, digits, '.', '-' and '_' only, so no quoting
+/// is ever needed. The workspace id keeps two workspaces of one user apart in one queue. The mapping is one to one:
+/// run ids (letters, digits, '.', '-', '_') are kept as they are, and an id too long for the room left keeps its
+/// start and ends in a hash of the whole id, so two runs never share a job name.
 /// </summary>
 public static partial class JobName
 {
     /// <summary>What a valid name looks like, for messages.</summary>
     public const string Rule = "1 to 64 characters: letters, digits, '.', '-' or '_'";
 
-    /// <summary>The name of segment <paramref name="segment"/> of run <paramref name="runId"/>.</summary>
-    public static string For(string runId, int segment)
+    /// <summary>The name of segment <paramref name="segment"/> of run <paramref name="runId"/> of workspace <paramref name="workspaceId"/>.</summary>
+    public static string For(string workspaceId, string runId, int segment)
     {
         var clean = new StringBuilder();
         foreach (var c in runId)
@@ -26,7 +27,8 @@ public static partial class JobName
         }
 
         var suffix = ".s" + segment.ToString("D3", CultureInfo.InvariantCulture);
-        var room = 64 - "cmp.".Length - suffix.Length;
+        var prefix = "cmp." + (workspaceId.Length > 0 ? workspaceId + "." : "");
+        var room = 64 - prefix.Length - suffix.Length;
         var id = clean.ToString();
         if (id.Length > room || id != runId)
         {
@@ -35,7 +37,7 @@ public static partial class JobName
             id = id[..Math.Min(id.Length, room - hash.Length - 1)] + "-" + hash;
         }
 
-        return "cmp." + id + suffix;
+        return prefix + id + suffix;
     }
 
     /// <summary>True when <paramref name="name"/> needs no quoting anywhere.</summary>

@@ -25,7 +25,11 @@ public sealed class Workspace : IDisposable
         Config = config;
         Machines = machines;
         Connection = connection;
+        Id = Dapper.SqlMapper.ExecuteScalar<string>(connection, "SELECT value FROM workspace_info WHERE key = 'workspace_id'") ?? "";
     }
+
+    /// <summary>A short random id of this workspace (8 hex digits), made when its database was: part of every job name.</summary>
+    public string Id { get; }
 
     /// <summary>Absolute path of the workspace folder.</summary>
     public string Root { get; }
@@ -50,8 +54,56 @@ public sealed class Workspace : IDisposable
     {
         root = Path.GetFullPath(root);
         var (config, machines) = ReadSettings(root);
-        var connection = CampaignDatabase.Open(PathOf(root, DatabaseFileName), time);
+        var database = PathOf(root, DatabaseFileName);
+        if (!File.Exists(database) || new FileInfo(database).Length == 0)
+        {
+            // Never a fresh, empty database where a workspace is: the history would be silently replaced.
+            throw new InvalidOperationException($"{database}: the workspace's database is {(File.Exists(database) ? "empty" : "missing")} though {ConfigFileName} is here; nothing was created. Restore campaign.db from a backup (docs/operations.md), or start a new workspace with 'campaign init'");
+        }
+
+        var connection = CampaignDatabase.Open(database, time);
         return new Workspace(root, config, machines, connection);
+    }
+
+    /// <summary>
+    /// True while the database file at the workspace's path is still the one this workspace opened: it exists, is
+    /// not empty and carries the same workspace id. A daemon checks it every cycle, so that a deleted, emptied or
+    /// replaced file is never written on blindly.
+    /// </summary>
+    public bool IsStillItsDatabase(out string why)
+    {
+        var path = PathOf(Root, DatabaseFileName);
+        why = "";
+        if (!File.Exists(path))
+        {
+            why = $"{path} was deleted";
+            return false;
+        }
+
+        if (new FileInfo(path).Length == 0)
+        {
+            why = $"{path} was emptied";
+            return false;
+        }
+
+        try
+        {
+            using var probe = new SqliteConnection(new SqliteConnectionStringBuilder { DataSource = path, Mode = SqliteOpenMode.ReadOnly, Pooling = false }.ToString());
+            probe.Open();
+            var id = Dapper.SqlMapper.ExecuteScalar<string>(probe, "SELECT value FROM workspace_info WHERE key = 'workspace_id'");
+            if (id != Id)
+            {
+                why = $"{path} was replaced by another database (workspace id {id ?? "none"}, opened {Id})";
+                return false;
+            }
+        }
+        catch (SqliteException e)
+        {
+            why = $"{path} cannot be read as this workspace's database any more ({e.Message})";
+            return false;
+        }
+
+        return true;
     }
 
     /// <summary>True when <paramref name="root"/> holds a campaign.toml.</summary>

@@ -47,8 +47,8 @@ public sealed class CycleStepTests : IDisposable
     {
         using var workspace = Workspace.Open(Ws, _clock);
         var runs = TrackingStore.Runs(workspace.Connection).Take(2).ToList();
-        var reached = new JobSegment(runs[0].RunId, 1, JobName.For(runs[0].RunId, 1), 10, TimeSpan.FromHours(1), 0, null, _clock.GetUtcNow());
-        var lost = new JobSegment(runs[1].RunId, 1, JobName.For(runs[1].RunId, 1), 10, TimeSpan.FromHours(1), 0, null, _clock.GetUtcNow());
+        var reached = new JobSegment(runs[0].RunId, 1, JobName.For(workspace.Id, runs[0].RunId, 1), 10, TimeSpan.FromHours(1), 0, null, _clock.GetUtcNow());
+        var lost = new JobSegment(runs[1].RunId, 1, JobName.For(workspace.Id, runs[1].RunId, 1), 10, TimeSpan.FromHours(1), 0, null, _clock.GetUtcNow());
         using (var tx = workspace.Connection.BeginTransaction())
         {
             TrackingStore.Insert(workspace.Connection, tx, reached);
@@ -77,7 +77,7 @@ public sealed class CycleStepTests : IDisposable
         using var workspace = Workspace.Open(Ws, _clock);
         var runs = TrackingStore.Runs(workspace.Connection).Where(r => r.Machine == Cluster).ToList();
         Assert.True(runs.Count >= 3);
-        _machines[Cluster].Refused.Add(JobName.For(runs[1].RunId, 1));
+        _machines[Cluster].Refused.Add(JobName.For(workspace.Id, runs[1].RunId, 1));
 
         var c = Context(workspace);
         await SubmitSegments.RunAsync(c, CancellationToken.None);

@@ -6,16 +6,24 @@ public class JobNameTests
     public void Ids_that_differ_only_in_dots_and_underscores_get_different_names()
     {
         // Regression (faults issue, item 7): "a.b" and "a_b" both became cmp.a_b_L1.s001.
-        Assert.NotEqual(JobName.For("a.b.L1", 1), JobName.For("a_b.L1", 1));
-        Assert.Equal("cmp.a.b.L1.s001", JobName.For("a.b.L1", 1));
+        Assert.NotEqual(JobName.For("5e1f09ab", "a.b.L1", 1), JobName.For("5e1f09ab", "a_b.L1", 1));
+        Assert.Equal("cmp.5e1f09ab.a.b.L1.s001", JobName.For("5e1f09ab", "a.b.L1", 1));
+    }
+
+    [Fact]
+    public void Two_workspaces_never_share_a_job_name()
+    {
+        // Regression (faults issue, item 1): names carried nothing of the workspace, so a look-up by name in the
+        // user's queue adopted another workspace's job.
+        Assert.NotEqual(JobName.For("5e1f09ab", "c1.L1", 1), JobName.For("0badc0de", "c1.L1", 1));
     }
 
     [Fact]
     public void Long_ids_keep_a_readable_start_and_stay_distinct_and_valid()
     {
         var common = new string('x', 50);
-        var one = JobName.For(common + "1.L1.r1", 12);
-        var two = JobName.For(common + "2.L1.r1", 12);
+        var one = JobName.For("5e1f09ab", common + "1.L1.r1", 12);
+        var two = JobName.For("5e1f09ab", common + "2.L1.r1", 12);
         Assert.NotEqual(one, two);
         Assert.All(new[] { one, two }, n => Assert.True(JobName.IsValid(n), n));
         Assert.All(new[] { one, two }, n => Assert.StartsWith("cmp.xxxx", n, StringComparison.Ordinal));

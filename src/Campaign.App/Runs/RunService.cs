@@ -63,9 +63,19 @@ public sealed class RunService
         }
 
         log($"Watching {workspace.Root} every {seconds.ToString(CultureInfo.InvariantCulture)} s (Ctrl-C or SIGTERM to stop).");
+        using var gone = CancellationTokenSource.CreateLinkedTokenSource(stop);
+        string? goneWhy = null;
         WatchHost.RunAsync(
             async token =>
             {
+                if (!workspace.IsStillItsDatabase(out var why))
+                {
+                    // Never write on blindly into a database that was deleted, emptied or replaced under the daemon.
+                    goneWhy = why;
+                    await gone.CancelAsync().ConfigureAwait(false);
+                    return new TickReport(0, 0, 0, 0, 0, 1, new Dictionary<string, int>(), new[] { why });
+                }
+
                 try
                 {
                     var report = await Reconciler(workspace).TickAsync(token).ConfigureAwait(false);
@@ -88,7 +98,11 @@ public sealed class RunService
             },
             TimeSpan.FromSeconds(seconds),
             request.UntilDone,
-            stop).GetAwaiter().GetResult();
+            gone.Token).GetAwaiter().GetResult();
+        if (goneWhy is not null)
+        {
+            throw new InvalidOperationException($"stopped watching: {goneWhy}; nothing more was written. Restore campaign.db from a backup (docs/operations.md) before watching again");
+        }
     }
 
     /// <summary>One line for a cycle.</summary>

@@ -247,6 +247,10 @@ public static class Migrations
             -- Segments that ended by the warning signal before the code made any progress, in a row (too short, not failures).
             ALTER TABLE tracked_runs ADD COLUMN short_segments INTEGER NOT NULL DEFAULT 0;
             """),
+        new Migration(8, "a workspace id: in job names, and to know the database is still the one opened", """
+            INSERT INTO workspace_info (key, value) VALUES ('workspace_id', lower(hex(randomblob(4))))
+            ON CONFLICT (key) DO NOTHING;
+            """),
     };
 
     /// <summary>Schema version this build writes.</summary>

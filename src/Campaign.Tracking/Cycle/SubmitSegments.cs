@@ -73,7 +73,7 @@ internal static class SubmitSegments
     {
         var folder = c.Folder(run);
         var (checkpoint, skipped) = Checkpoints.NewestValid(folder.CheckpointFiles(), c.Settings.CheckpointMarker.Length > 0, TimeSpan.FromSeconds(c.Settings.CheckpointSettleSeconds), c.Now);
-        var name = JobName.For(run.RunId, number);
+        var name = JobName.For(c.Workspace.Id, run.RunId, number);
         Directory.CreateDirectory(Path.Combine(folder.Path, "logs"));
         var environment = new Dictionary<string, string>(c.JobEnvironment)
         {

@@ -34,6 +34,9 @@ public sealed class SimulatedMachine : IBatchSystem
     /// <summary>Job names this machine refuses, as a controller refuses a job's request (its account, its size).</summary>
     public HashSet<string> Refused { get; } = new(StringComparer.Ordinal);
 
+    /// <summary>While true a submission times out before it reaches the queue (its answer is lost, nothing was queued).</summary>
+    public bool TimeOutSubmissions { get; set; }
+
     /// <summary>Runs whose code has stopped advancing (alive, no progress).</summary>
     public HashSet<string> Stalled { get; } = new(StringComparer.Ordinal);
 
@@ -55,6 +58,11 @@ public sealed class SimulatedMachine : IBatchSystem
     public Task<string> SubmitAsync(JobRequest request, CancellationToken cancellationToken)
     {
         Check();
+        if (TimeOutSubmissions)
+        {
+            throw new BatchSystemException(BatchErrorKind.Transient, "sbatch: error: Batch job submission failed: Socket timed out on send/recv operation");
+        }
+
         if (Refused.Contains(request.Name))
         {
             throw new BatchSystemException(BatchErrorKind.Rejected, "sbatch: error: Batch job submission failed: Invalid account or account/partition combination specified\n(details)");

@@ -127,8 +127,8 @@ public sealed class LocalRunnerTests : IDisposable
     {
         var runner = LocalRunner.Create(State);
         var id = await runner.SubmitAsync(Request("named", "exit 0"), CancellationToken.None);
-        Assert.Equal(id, await runner.FindAsync(JobName.For("named", 1), CancellationToken.None));
-        Assert.Null(await runner.FindAsync(JobName.For("never", 1), CancellationToken.None));
+        Assert.Equal(id, await runner.FindAsync(JobName.For("t0", "named", 1), CancellationToken.None));
+        Assert.Null(await runner.FindAsync(JobName.For("t0", "never", 1), CancellationToken.None));
     }
 
     [Fact]

@@ -39,8 +39,8 @@ public sealed class SlurmClusterTests : IDisposable
         using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var id = await slurm.SubmitAsync(_jobs.Request("findme", _jobs.Script("findme", "exit 0")), CancellationToken.None);
-        Assert.Equal(id, await slurm.FindAsync(JobName.For("findme", 1), CancellationToken.None));
-        Assert.Null(await slurm.FindAsync(JobName.For("nobody-" + Guid.NewGuid().ToString("N")[..8], 1), CancellationToken.None));
+        Assert.Equal(id, await slurm.FindAsync(JobName.For("t0", "findme", 1), CancellationToken.None));
+        Assert.Null(await slurm.FindAsync(JobName.For("t0", "nobody-" + Guid.NewGuid().ToString("N")[..8], 1), CancellationToken.None));
     }
 
     [SlurmFact]

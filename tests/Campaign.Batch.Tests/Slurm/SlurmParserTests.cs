@@ -124,7 +124,7 @@ public class SlurmParserTests
     public void Submit_arguments_are_a_plain_list_with_the_warning_for_the_batch_shell()
     {
         var adapter = new SlurmBatchSystem(new SlurmOptions { Partition = "test" });
-        var request = new JobRequest(JobName.For("q4 a/b", 2), "/w/run.sh", "/w", 48, TimeSpan.FromHours(23.99), "/w/o.txt", "/w/e.txt",
+        var request = new JobRequest(JobName.For("t0", "q4 a/b", 2), "/w/run.sh", "/w", 48, TimeSpan.FromHours(23.99), "/w/o.txt", "/w/e.txt",
             new Dictionary<string, string> { ["CAMPAIGN_RESTART"] = "/w/ck 1" }, "77", new WarningSignal("USR1", 600));
         Assert.Equal(
             new[]

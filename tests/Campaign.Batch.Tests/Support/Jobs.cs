@@ -20,7 +20,7 @@ public sealed class Jobs
 
     /// <summary>A request for a script with a one-minute default limit.</summary>
     public JobRequest Request(string name, string script, int minutes = 1, string? afterAny = null, WarningSignal? warning = null, int cores = 1, IReadOnlyDictionary<string, string>? environment = null) =>
-        new(JobName.For(name, 1), script, _folder, cores, TimeSpan.FromMinutes(minutes), Path.Combine(_folder, name + ".out"), Path.Combine(_folder, name + ".err"),
+        new(JobName.For("t0", name, 1), script, _folder, cores, TimeSpan.FromMinutes(minutes), Path.Combine(_folder, name + ".out"), Path.Combine(_folder, name + ".err"),
             environment ?? new Dictionary<string, string>(), afterAny, warning);
 
     /// <summary>Polls until every job is final (or <paramref name="limit"/> passes); returns the last statuses.</summary>

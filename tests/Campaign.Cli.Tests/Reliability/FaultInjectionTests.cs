@@ -61,7 +61,7 @@ public sealed class FaultInjectionTests(ITestOutputHelper output) : IDisposable
     public void Transient_batch_system_faults_are_retried_without_failing_or_duplicating_anything_and_a_permanent_one_is_reported_once()
     {
         Prepare("sm-q1-a00,sm-q2-a04");
-        var refused = JobName.For("sm-q2-a04.L2", 1);
+        var refused = WorkspaceId.JobName(Ws(), "sm-q2-a04.L2", 1);
         var faults = new FaultInjector(seed: 909, rate: 0.35, permanentlyRefused: refused);
         var reports = RunCycles(faults, TimeSpan.FromSeconds(150));
         output.WriteLine($"{reports.Count} cycles; {faults}");

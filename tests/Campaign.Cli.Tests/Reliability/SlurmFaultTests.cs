@@ -20,7 +20,7 @@ public sealed class SlurmFaultTests(ITestOutputHelper output) : IDisposable
         if (SlurmCluster.SkipReason is null && _node is not null)
         {
             Run("scontrol", "update", $"NodeName={_node}", "State=RESUME");
-            Run("scancel", "--name", Campaign.Batch.JobName.For("sm-q1-a00.L1.r1", 1));
+            Run("scancel", "--name", WorkspaceId.JobName(Path.Combine(_folder.Path, "ws"), "sm-q1-a00.L1.r1", 1));
         }
 
         _folder.Dispose();

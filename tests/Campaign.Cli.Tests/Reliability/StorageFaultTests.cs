@@ -155,7 +155,7 @@ public sealed class StorageFaultTests(ITestOutputHelper output) : IDisposable
         // the way a crash in the middle of a write or a bad disk would: truncated, its marker still there.
         var folder = Ws("runs/sm-q1-a00.L1.r1/checkpoints");
         var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(30);
-        var name = Campaign.Batch.JobName.For("sm-q1-a00.L1.r1", 1);
+        var name = WorkspaceId.JobName(Ws(), "sm-q1-a00.L1.r1", 1);
         bool Ended() => Directory.EnumerateFiles(Ws("local-runner"), "request.json", SearchOption.AllDirectories)
             .Any(f => JsonDocument.Parse(File.ReadAllText(f)).RootElement.GetProperty("Name").GetString() == name && File.Exists(Path.Combine(Path.GetDirectoryName(f)!, "exit.json")));
         while (DateTime.UtcNow < deadline && !Ended())

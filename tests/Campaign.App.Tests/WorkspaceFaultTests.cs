@@ -1,0 +1,102 @@
+using Campaign.App.Plans;
+using Campaign.App.Runs;
+using Campaign.App.Tests.Support;
+using Campaign.App.Workspaces;
+using Campaign.Core.Lifecycle;
+using Campaign.Core.Selection;
+using Campaign.Store;
+
+namespace Campaign.App.Tests;
+
+/// <summary>Faults between workspaces and of a workspace's own database (regressions of the faults issue).</summary>
+public sealed class WorkspaceFaultTests : IDisposable
+{
+    private readonly TempFolder _folder = new();
+    private readonly SimulatedClock _clock = new(new DateTimeOffset(2027, 2, 1, 8, 0, 0, TimeSpan.Zero));
+    private readonly Dictionary<string, SimulatedMachine> _machines = new(StringComparer.Ordinal);
+
+    public WorkspaceFaultTests()
+    {
+        foreach (var ws in new[] { A, B })
+        {
+            TestWorkspace.Create(ws, _clock);
+            File.WriteAllText(Path.Combine(ws, "one.csv"), "id,q,chi1z,omega0,levels,cores,cluster,core_hours\nc1,2,0,0.02,1,128,halyard,100000\n");
+            new PlanService(_clock).Select(new SelectRequest(ws, Path.Combine(ws, "one.csv"), "one.csv", SelectionObjective.Coverage, 1e7, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
+            new TrackService(_clock).Track(new TrackRequest(ws, null, null, null, false));
+        }
+
+        // One queue shared by both workspaces, as one user's queue on one cluster.
+        foreach (var profile in WorkspaceAdmin.Settings(A).Machines.Values)
+        {
+            _machines[profile.Name] = new SimulatedMachine(_clock, profile, _ => 1000, TimeSpan.FromHours(1));
+        }
+    }
+
+    private string A => Path.Combine(_folder.Path, "a");
+
+    private string B => Path.Combine(_folder.Path, "b");
+
+    public void Dispose() => _folder.Dispose();
+
+    private RunService Runs => new(_clock, BatchAccess.Given(m => _machines[m]));
+
+    [Fact]
+    public void A_lost_submission_answer_never_adopts_or_cancels_another_workspaces_job()
+    {
+        // Regression (faults issue, item 1): both workspaces track c1.L1 on one machine; B's submission times out,
+        // and B's next cycle found A's job by its name, adopted it, and 'abandon' in B cancelled it.
+        Runs.Cycle(A);
+        string aJob;
+        using (var a = Workspace.Open(A, _clock))
+        {
+            aJob = TrackingStore.SegmentsOf(a.Connection, "c1.L1").Single().JobId!;
+        }
+
+        _machines["halyard"].TimeOutSubmissions = true;
+        Runs.Cycle(B);
+        _machines["halyard"].TimeOutSubmissions = false;
+        _clock.Advance(TimeSpan.FromMinutes(10));
+        Runs.Cycle(B);
+
+        using (var b = Workspace.Open(B, _clock))
+        {
+            var segments = TrackingStore.SegmentsOf(b.Connection, "c1.L1");
+            Assert.DoesNotContain(segments, s => s.JobId == aJob);
+            Assert.Contains(TrackingStore.Events(b.Connection, "c1.L1"), e => e.Why.Contains("never reached the batch system", StringComparison.Ordinal));
+        }
+
+        Runs.Abandon(new RunSelection(B, new[] { "c1.L1" }, null, null));
+        Assert.DoesNotContain(aJob, _machines["halyard"].Cancelled);
+    }
+
+    [Fact]
+    public void A_deleted_or_emptied_database_is_never_replaced_by_an_empty_one()
+    {
+        // Regression (faults issue, item 2): after 'rm campaign.db', status printed "No tracked runs" (exit 0)
+        // from a fresh, empty database.
+        var database = Path.Combine(A, "campaign.db");
+        File.Delete(database);
+        var missing = Assert.Throws<InvalidOperationException>(() => new StatusService(_clock).Status(A, 0));
+        Assert.StartsWith($"{database}: the workspace's database is missing though campaign.toml is here; nothing was created. Restore campaign.db from a backup", missing.Message, StringComparison.Ordinal);
+        Assert.False(File.Exists(database));
+
+        File.WriteAllBytes(database, Array.Empty<byte>());
+        var empty = Assert.Throws<InvalidOperationException>(() => Runs.Cycle(A));
+        Assert.Contains("database is empty", empty.Message, StringComparison.Ordinal);
+        Assert.Equal(0, new FileInfo(database).Length);
+    }
+
+    [Fact]
+    public void The_daemon_stops_when_its_database_is_deleted_under_it()
+    {
+        using var stop = new CancellationTokenSource(TimeSpan.FromSeconds(60));
+        var lines = new List<string>();
+        var watch = Task.Run(() => Runs.Watch(new WatchRequest(A, 0.2, UntilDone: false), l => { lock (lines) { lines.Add(l); } }, _ => { }, stop.Token));
+        SpinWait.SpinUntil(() => { lock (lines) { return lines.Count >= 2; } }, TimeSpan.FromSeconds(30)); // the first cycle ran
+        File.Delete(Path.Combine(A, "campaign.db"));
+        var error = Assert.Throws<AggregateException>(() => watch.Wait(TimeSpan.FromSeconds(30))).InnerException;
+        Assert.IsType<InvalidOperationException>(error);
+        Assert.Contains("campaign.db was deleted; nothing more was written", error!.Message, StringComparison.Ordinal);
+        Assert.False(stop.IsCancellationRequested);
+    }
+}
