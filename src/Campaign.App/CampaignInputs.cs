@@ -38,13 +38,8 @@ internal sealed record CampaignInputs(IReadOnlyList<RunLog> Logs, TrainingSet Tr
     /// <summary>Reads and validates a candidate file with the workspace's settings; a clear error when it is missing.</summary>
     public static IReadOnlyList<Candidate> Candidates(Workspace workspace, string path, string shown)
     {
-        if (!File.Exists(path))
-        {
-            throw new InvalidInputException(new[] { $"{shown}: no such file: expected a candidate file (CSV)" });
-        }
-
         var config = workspace.Config;
-        return CandidateReader.Read(StrictUtf8.Decode(File.ReadAllBytes(path), shown), shown, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
+        return CandidateReader.Read(InputFile.Read(path, shown, "a candidate file (CSV)"), shown, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
     }
 
     /// <summary>Charged core-hours granted per machine (all its allocations).</summary>

@@ -104,4 +104,23 @@ public sealed class PlanAndReportTests : IDisposable
         var kept = Store.RunLogStore.All(db.Connection).Single(l => l.RunId == config + ".L1");
         Assert.Equal((7.0, "gunwale", 1597.0), (kept.Configuration.Q.Value, kept.Machine, kept.WallHours));
     }
+
+    [Fact]
+    public void A_device_a_directory_and_a_run_too_long_to_cost_are_refused_with_exit_2_messages_not_crashes()
+    {
+        // Regression (faults issue, item 14): /dev/zero ran out of memory after 22 s, a directory was "no such file",
+        // and q = 1000 with omega0 = 0.0001 (both within the documented ranges) overflowed in the estimate.
+        var estimate = new EstimateService(_clock);
+        var device = Assert.Throws<InvalidInputException>(() => estimate.Estimate(new EstimateRequest(Ws, "/dev/zero", "/dev/zero", new EstimateOptions())));
+        Assert.Equal("/dev/zero: not a regular file (a device or a pipe gives more than the 0 bytes it states): expected a candidate file (CSV)", Assert.Single(device.Problems));
+        var folder = Assert.Throws<InvalidInputException>(() => estimate.Estimate(new EstimateRequest(Ws, Path.Combine(Ws, "machines"), "machines", new EstimateOptions())));
+        Assert.Equal("machines: is a directory: expected a candidate file (CSV)", Assert.Single(folder.Problems));
+
+        var file = Path.Combine(Ws, "long.csv");
+        File.WriteAllText(file, "id,q,chi1z,omega0\nlong,1000,0,0.0001\n");
+        var tooLong = Assert.Throws<InvalidInputException>(() => estimate.Estimate(new EstimateRequest(Ws, file, "long.csv", new EstimateOptions())));
+        Assert.StartsWith("long.csv:2:4: omega0 = 0.0001: expected a run of at most 10,000,000 M (this one would last 9.12E+11 M)", Assert.Single(tooLong.Problems), StringComparison.Ordinal);
+        Assert.Throws<InvalidInputException>(() => new PlanService(_clock).Select(new SelectRequest(Ws, file, "long.csv", SelectionObjective.Coverage, 1e6, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true)));
+        Assert.Null(new PlanService(_clock).Current(Ws));
+    }
 }

@@ -26,8 +26,9 @@ public class JobNameTests
         var two = JobName.For("5e1f09ab", common + "2.L1.r1", 12);
         Assert.NotEqual(one, two);
         Assert.All(new[] { one, two }, n => Assert.True(JobName.IsValid(n), n));
-        Assert.All(new[] { one, two }, n => Assert.StartsWith("cmp.xxxx", n, StringComparison.Ordinal));
+        Assert.All(new[] { one, two }, n => Assert.StartsWith("cmp.5e1f09ab.xxxx", n, StringComparison.Ordinal));
         Assert.All(new[] { one, two }, n => Assert.EndsWith(".s012", n, StringComparison.Ordinal));
         Assert.False(JobName.IsValid("cmp.a.s001\n"));
+        Assert.Equal("cmp.5e1f09ab.q4_a_b-", JobName.For("5e1f09ab", "q4 a/b", 2)[..20]); // a character a job name cannot carry: cleaned, and hashed apart
     }
 }

@@ -11,12 +11,7 @@ public static class CandidateFile
     /// <summary>The configurations of a candidate file, read with the given settings; a clear error when it is missing.</summary>
     public static IReadOnlyList<(string Id, BinaryConfiguration Configuration)> Read(string path, string shown, LengthSettings length, RunDefaults defaults, string defaultMachine, IReadOnlyCollection<string> machines)
     {
-        if (!File.Exists(path))
-        {
-            throw new InvalidInputException(new[] { $"{shown}: no such file: expected a candidate file (CSV)" });
-        }
-
-        return CandidateReader.Read(StrictUtf8.Decode(File.ReadAllBytes(path), shown), shown, length, defaults, defaultMachine, machines)
+        return CandidateReader.Read(InputFile.Read(path, shown, "a candidate file (CSV)"), shown, length, defaults, defaultMachine, machines)
             .Select(c => (c.Id, c.Spec.Configuration))
             .ToList();
     }

@@ -29,13 +29,9 @@ public sealed class RunLogService
     /// <summary>Reads, validates and stores a run-log file in one transaction.</summary>
     public ImportLogsResult Import(ImportLogsRequest request)
     {
-        if (!File.Exists(request.Path))
-        {
-            throw new InvalidInputException(new[] { $"{request.Shown}: no such file: expected a run-log file (CSV)" });
-        }
-
+        var text = InputFile.Read(request.Path, request.Shown, "a run-log file (CSV)");
         using var workspace = Workspace.Open(request.Workspace, _time);
-        var rows = RunLogReader.Read(StrictUtf8.Decode(File.ReadAllBytes(request.Path), request.Shown), request.Shown, workspace.Config.Length, workspace.Machines.Keys.ToList());
+        var rows = RunLogReader.Read(text, request.Shown, workspace.Config.Length, workspace.Machines.Keys.ToList());
         var result = RunLogStore.Import(workspace.Connection, rows, request.Shown, request.Replace, _time);
         return new ImportLogsResult(result.Added, result.Replaced, RunLogStore.All(workspace.Connection).Count);
     }

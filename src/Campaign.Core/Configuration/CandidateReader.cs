@@ -27,6 +27,12 @@ public static partial class CandidateReader
     /// </summary>
     public const string IdRule = "an id of 1 to 48 characters: letters, digits, '.', '-' or '_', starting with a letter or digit";
 
+    /// <summary>
+    /// The longest simulated length (M) a candidate may need: a hundred times the longest runs groups make
+    /// (about 1e5 M; order of magnitude from common practice, from memory).
+    /// </summary>
+    public const double MaximumLength = 10_000_000;
+
     [System.Text.RegularExpressions.GeneratedRegex("^[A-Za-z0-9][A-Za-z0-9._-]{0,47}\\z")]
     private static partial System.Text.RegularExpressions.Regex IdPattern();
 
@@ -115,7 +121,17 @@ public static partial class CandidateReader
 
             try
             {
-                candidates.Add(new Candidate(id!, draft.BuildRunSpec(settings), machines[0], value, must, coreHours, machines));
+                var spec = draft.BuildRunSpec(settings);
+                var total = Physics.SimulatedLength.Estimate(spec.Configuration, settings).Total;
+                if (!(total <= MaximumLength))
+                {
+                    // Far beyond any run a group can afford; the cost arithmetic would overflow long before.
+                    var column = table.Has("omega0") && cells.Text("omega0") is { Length: > 0 } ? "omega0" : "orbits";
+                    cells.Problem(column, cells.Text(column) ?? "", $"a run of at most {MaximumLength.ToString("N0", CultureInfo.InvariantCulture)} M (this one would last {total.ToString("0.##E+0", CultureInfo.InvariantCulture)} M): start closer to merger");
+                    continue;
+                }
+
+                candidates.Add(new Candidate(id!, spec, machines[0], value, must, coreHours, machines));
             }
             catch (InvalidInputException e)
             {

@@ -421,7 +421,29 @@ public static partial class TomlDocument
             throw Error($"'{token}' is not a value: expected a quoted string, a number, true, false, a date (YYYY-MM-DD), an array or an inline table", line, column);
         }
 
+        /// <summary>Deepest nesting of arrays and inline tables read (no config needs more; deeper text would exhaust the stack).</summary>
+        private const int MaxDepth = 64;
+
+        private int _depth;
+
         private TomlValue ReadArray(int line, int column, int start)
+        {
+            if (++_depth > MaxDepth)
+            {
+                throw Error($"arrays and inline tables nested more than {MaxDepth} deep: expected a flat value such as [1, 2, 3]", line, column);
+            }
+
+            try
+            {
+                return ReadArrayItems(line, column, start);
+            }
+            finally
+            {
+                _depth--;
+            }
+        }
+
+        private TomlValue ReadArrayItems(int line, int column, int start)
         {
             Advance();
             var items = new List<TomlValue>();
@@ -453,6 +475,23 @@ public static partial class TomlDocument
         }
 
         private TomlValue ReadInlineTable(int line, int column, int start)
+        {
+            if (++_depth > MaxDepth)
+            {
+                throw Error($"arrays and inline tables nested more than {MaxDepth} deep: expected a flat value", line, column);
+            }
+
+            try
+            {
+                return ReadInlineTableItems(line, column, start);
+            }
+            finally
+            {
+                _depth--;
+            }
+        }
+
+        private TomlValue ReadInlineTableItems(int line, int column, int start)
         {
             Advance();
             var table = new TomlTable("{inline}", line, column);

@@ -29,7 +29,7 @@ public sealed class SlurmClusterTests : IDisposable
         Assert.Equal(0, status.ExitCode);
         Assert.Equal(0, status.Signal);
         Assert.Equal(1, status.ChargedCores);
-        Assert.Equal("cmp.ok.s001", status.Name);
+        Assert.Equal("cmp.t0.ok.s001", status.Name);
         Assert.Equal("restart=/ck/dir with space\n", File.ReadAllText(Path.Combine(_folder, "ok.out")));
     }
 

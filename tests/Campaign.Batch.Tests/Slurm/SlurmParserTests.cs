@@ -129,7 +129,7 @@ public class SlurmParserTests
         Assert.Equal(
             new[]
             {
-                "--parsable", "--job-name=cmp.q4_a_b.s002", "--chdir=/w", "--output=/w/o.txt", "--error=/w/e.txt", "--ntasks=48", "--time=1440",
+                "--parsable", "--job-name=" + JobName.For("t0", "q4 a/b", 2), "--chdir=/w", "--output=/w/o.txt", "--error=/w/e.txt", "--ntasks=48", "--time=1440",
                 "--export=ALL", "--partition=test", "--dependency=afterany:77", "--signal=B:USR1@600", "/w/run.sh",
             },
             adapter.SubmitArguments(request));

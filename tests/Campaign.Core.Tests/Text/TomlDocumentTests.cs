@@ -84,4 +84,16 @@ public class TomlDocumentTests
         var root = TomlDocument.Parse("\uFEFFa = 1\r\nb = \"x\"\r\n", "f.toml");
         Assert.True(root.Contains("a") && root.Contains("b"));
     }
+
+    [Theory]
+    [InlineData("[", "]")]
+    [InlineData("{ a = ", " }")]
+    public void Values_nested_twenty_thousand_deep_are_refused_with_their_location_instead_of_exhausting_the_stack(string open, string close)
+    {
+        // Regression (faults issue, item 14): levels nested 20,000 deep ended every command in "Stack overflow".
+        var text = "[defaults]\nlevels = " + string.Concat(Enumerable.Repeat(open, 20_000)) + "1" + string.Concat(Enumerable.Repeat(close, 20_000)) + "\n";
+        var error = Assert.Throws<InvalidDataException>(() => TomlDocument.Parse(text, "campaign.toml"));
+        Assert.StartsWith("campaign.toml:2:", error.Message, StringComparison.Ordinal);
+        Assert.Contains("nested more than 64 deep", error.Message, StringComparison.Ordinal);
+    }
 }
