@@ -99,4 +99,29 @@ public sealed class WorkspaceFaultTests : IDisposable
         Assert.Contains("campaign.db was deleted; nothing more was written", error!.Message, StringComparison.Ordinal);
         Assert.False(stop.IsCancellationRequested);
     }
+
+    [Fact]
+    public void A_notify_command_that_hangs_is_stopped_leaves_no_process_and_holds_the_cycle_up_only_briefly()
+    {
+        // Regression (faults issue, item 12): ["sleep", "3600"] blocked 30 s per notice and left its processes running.
+        using var other = new TempFolder();
+        var ws = Path.Combine(other.Path, "ws");
+        TestWorkspace.Create(ws, _clock, "notify_command = [\"sleep\", \"3601.25\"]\n");
+        File.WriteAllText(Path.Combine(ws, "three.csv"), "id,q,chi1z,omega0,levels,cores,cluster,core_hours\nc1,2,0,0.02,1;2;3,128,halyard,100000\n");
+        new PlanService(_clock).Select(new SelectRequest(ws, Path.Combine(ws, "three.csv"), "three.csv", SelectionObjective.Coverage, 1e7, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
+        new TrackService(_clock).Track(new TrackRequest(ws, null, null, null, false));
+
+        var watch = System.Diagnostics.Stopwatch.StartNew();
+        var report = Runs.Cycle(ws); // three runs go planned -> queued: three notices
+        watch.Stop();
+
+        Assert.Equal(3, report.Submitted);
+        Assert.True(watch.Elapsed < Tracking.Notifier.PerCycle + TimeSpan.FromSeconds(5), $"the cycle took {watch.Elapsed}");
+        Assert.Equal(2, report.Messages.Count(m => m.StartsWith("notify command did not finish within 5 s and was stopped", StringComparison.Ordinal)));
+        Assert.Contains(report.Messages, m => m.StartsWith("notify command: 1 notices not sent", StringComparison.Ordinal));
+        var left = Directory.EnumerateDirectories("/proc").Select(d => Path.Combine(d, "cmdline")).Where(File.Exists)
+            .Select(f => { try { return File.ReadAllText(f); } catch (IOException) { return ""; } catch (UnauthorizedAccessException) { return ""; } })
+            .Count(c => c.Contains("3601.25", StringComparison.Ordinal));
+        Assert.Equal(0, left);
+    }
 }
