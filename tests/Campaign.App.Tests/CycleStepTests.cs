@@ -5,6 +5,7 @@ using Campaign.App.Runs;
 using Campaign.App.Tests.Support;
 using Campaign.Batch;
 using Campaign.Core.CostModel;
+using Campaign.Core.Domain;
 using Campaign.Core.Lifecycle;
 using Campaign.Core.Selection;
 using Campaign.Core.Tracking;
@@ -206,5 +207,41 @@ public sealed class CycleStepTests : IDisposable
 
         using var after = Workspace.Open(ws, _clock);
         Assert.Contains(TrackingStore.Events(after.Connection, "sm-a.L1"), e => e.Why.Contains("no progress for", StringComparison.Ordinal));
+    }
+
+    [Fact]
+    public void Excluding_a_tracked_configuration_is_refused_unless_it_is_withdrawn_and_then_its_jobs_are_cancelled()
+    {
+        // Regression (faults issue, item 6): a re-plan with --exclude of a tracked run left it to be submitted
+        // anyway, outside the new plan's budget.
+        var runs = new RunService(_clock, BatchAccess.Given(m => _machines[m]));
+        runs.Cycle(Ws); // the tracked runs are submitted
+        string excluded;
+        using (var workspace = Workspace.Open(Ws, _clock))
+        {
+            excluded = TrackingStore.Runs(workspace.Connection).First().ConfigId;
+        }
+
+        SelectRequest Replan(bool withdraw) => new(Ws, Path.Combine(Ws, "candidates.csv"), "candidates.csv", SelectionObjective.Coverage, null, 0.5, new[] { excluded }, null, 0, 1500, 5, Save: true, Withdraw: withdraw);
+        var refused = Assert.Throws<InvalidInputException>(() => new PlanService(_clock).Select(Replan(false)));
+        Assert.StartsWith($"--exclude {excluded}: it is tracked (", Assert.Single(refused.Problems), StringComparison.Ordinal);
+        Assert.Equal(1, new PlanService(_clock).Current(Ws)!.Id); // nothing saved
+
+        var result = new PlanService(_clock).Select(Replan(true));
+        Assert.NotEmpty(result.Withdrawn!);
+        Assert.DoesNotContain(excluded, result.Carried.Select(c => c.ConfigId));
+        Assert.DoesNotContain(excluded, new PlanService(_clock).Current(Ws)!.ConfigIds);
+        _clock.Advance(TimeSpan.FromMinutes(30));
+        runs.Cycle(Ws);
+
+        using var db = Workspace.Open(Ws, _clock);
+        foreach (var id in result.Withdrawn!)
+        {
+            var run = TrackingStore.Run(db.Connection, id)!;
+            Assert.Equal(RunState.Failed, run.State);
+            Assert.Equal("withdrawn from the campaign by plan 2", run.Reason);
+            var segment = Assert.Single(TrackingStore.SegmentsOf(db.Connection, id));
+            Assert.Contains(segment.JobId!, _machines[Cluster].Cancelled);
+        }
     }
 }

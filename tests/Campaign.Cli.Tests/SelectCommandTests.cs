@@ -90,8 +90,13 @@ public class SelectCommandTests
         var tick = CliRun.Live(folder.Path, "--dir", "ws", "tick", "--json").Json();
         Assert.True(tick.GetProperty("submitted").GetInt32() > 0);
 
-        // A new plan that excludes the started configuration and has little budget still keeps it, and says so.
-        var run = CliRun.Of(folder.Path, "--dir", "ws", "select", "ws/candidates.csv", "--budget", "2500000", "--exclude", started, "--save", "--json");
+        // Excluding it without --withdraw is refused, and nothing is saved.
+        var excluded = CliRun.Of(folder.Path, "--dir", "ws", "select", "ws/candidates.csv", "--budget", "2500000", "--exclude", started, "--save");
+        Assert.Equal(2, excluded.ExitCode);
+        Assert.Contains($"--exclude {started}: it is tracked", excluded.Err, StringComparison.Ordinal);
+
+        // A new plan with little budget keeps it, and says so.
+        var run = CliRun.Of(folder.Path, "--dir", "ws", "select", "ws/candidates.csv", "--budget", "2500000", "--save", "--json");
         Assert.True(run.ExitCode == 0, run.Err);
         var json = run.Json();
         Assert.Equal(2, json.GetProperty("plan_id").GetInt64());

@@ -2,6 +2,7 @@ using Campaign.Core.Lifecycle;
 using Campaign.Core.CostModel;
 using Campaign.Core.Domain;
 using Campaign.Core.Selection;
+using Campaign.Core.Tracking;
 using Campaign.Store;
 
 namespace Campaign.App.Plans;
@@ -19,6 +20,9 @@ namespace Campaign.App.Plans;
 /// <param name="EccentricityTrialLength">Simulated length of each trial (M).</param>
 /// <param name="LeftOut">How many of the best left-out candidates to report.</param>
 /// <param name="Save">Store the selection as a new plan version.</param>
+/// <param name="Withdraw">Withdraw the tracked configurations that <paramref name="Exclude"/> names: their runs are
+/// given up (open jobs cancelled by the next cycle) instead of carried over. Without it, excluding a tracked
+/// configuration is refused.</param>
 public sealed record SelectRequest(
     string Workspace,
     string Path,
@@ -31,7 +35,8 @@ public sealed record SelectRequest(
     int EccentricityTrials,
     double EccentricityTrialLength,
     int LeftOut,
-    bool Save);
+    bool Save,
+    bool Withdraw = false);
 
 /// <summary>A selection and, when saved, the plan it became.</summary>
 /// <param name="Request">The selection request as the selector saw it.</param>
@@ -42,6 +47,7 @@ public sealed record SelectRequest(
 /// <param name="Carried">Configurations kept because they had started, with what they still need.</param>
 /// <param name="Reserved">Charged core-hours taken off each budget before choosing: spent plus what the started runs still need.</param>
 /// <param name="PlanId">The new plan's version, when saved.</param>
+/// <param name="Withdrawn">Runs withdrawn from the campaign (given up) by this re-plan.</param>
 public sealed record SelectResult(
     SelectionRequest Request,
     BuiltSelection Built,
@@ -50,7 +56,8 @@ public sealed record SelectResult(
     int Existing,
     IReadOnlyList<CarriedConfiguration> Carried,
     IReadOnlyDictionary<string, double> Reserved,
-    long? PlanId);
+    long? PlanId,
+    IReadOnlyList<string>? Withdrawn = null);
 
 /// <summary>
 /// Choosing what to run within the budget, and saving it as the plan. A re-plan keeps every configuration that has
@@ -80,6 +87,18 @@ public sealed class PlanService
         var snapshot = CampaignSnapshot.Load(workspace);
 
         var carried = Carry(snapshot);
+
+        // A tracked configuration the user excludes leaves the campaign only when asked to (--withdraw).
+        var excludedTracked = carried.Where(c => request.Exclude.Contains(c.ConfigId) && snapshot.Standing.Runs.Any(r => r.Entry.ConfigId == c.ConfigId && r.IsLeft && r.Run is not null)).ToList();
+        if (excludedTracked.Count > 0 && !request.Withdraw)
+        {
+            throw new InvalidInputException(excludedTracked.Select(c => $"--exclude {c.ConfigId}: it is tracked ({c.Why}): expected --withdraw to withdraw it from the campaign (its runs are given up and their jobs cancelled by the next cycle), or leave it out of --exclude to keep it").ToList());
+        }
+
+        var withdrawn = excludedTracked.Select(c => c.ConfigId).ToHashSet(StringComparer.Ordinal);
+        carried = carried.Where(c => !withdrawn.Contains(c.ConfigId) || snapshot.Standing.Runs.Any(r => r.Entry.ConfigId == c.ConfigId && r.Status == PlanRunStatus.Finished))
+            .Select(c => withdrawn.Contains(c.ConfigId) ? c with { RemainingCost = 0, Why = c.Why + "; the rest withdrawn" } : c)
+            .ToList();
         var carriedIds = carried.Select(c => c.ConfigId).ToHashSet(StringComparer.Ordinal);
         var allocations = CampaignInputs.Allocations(workspace);
         var reserved = Reserved(snapshot, carried, allocations.Keys, request.Budget is not null, workspace.Machines.Keys);
@@ -97,12 +116,12 @@ public sealed class PlanService
             request.Quantile,
             request.Budget,
             allocations,
-            request.Exclude.Where(id => !carriedIds.Contains(id) && !givenUp.Contains(id)).ToHashSet(StringComparer.Ordinal),
+            request.Exclude.Where(id => !carriedIds.Contains(id) && !givenUp.Contains(id) && !withdrawn.Contains(id)).ToHashSet(StringComparer.Ordinal),
             request.MaxRuns is { } cap and >= 1 ? Math.Max(1, cap - carried.Count) : request.MaxRuns, // the carried count against the cap; a bad cap is refused by the builder
             new Dictionary<string, string>(),
             reserved);
         var estimateOptions = new EstimateOptions { EccentricityTrials = request.EccentricityTrials, EccentricityTrialLength = request.EccentricityTrialLength };
-        var open = candidates.Where(c => !carriedIds.Contains(c.Id) && !givenUp.Contains(c.Id)).ToList();
+        var open = candidates.Where(c => !carriedIds.Contains(c.Id) && !givenUp.Contains(c.Id) && !withdrawn.Contains(c.Id)).ToList();
         var built = SelectionBuilder.Build(open, workspace.Machines, inputs.Model?.Model, inputs.Storage, inputs.Length, estimateOptions, config.Selection, existing, selection);
         built = built with { Dropped = built.Dropped.Concat(candidates.Where(c => givenUp.Contains(c.Id)).Select(c => (c.Id, "given up in this campaign (abandoned)"))).ToList() };
         var result = Selector.Solve(built.Problem, progress);
@@ -113,9 +132,38 @@ public sealed class PlanService
             var entries = Chosen(built, result, request.Quantile).Concat(snapshot.Standing.EntriesOf(carriedIds)).ToList();
             var draft = new PlanDraft(request.Objective.ToString().ToLowerInvariant(), request.Quantile, result.Objective, result.UpperBound, result.Method, request.Shown, entries, carried, reserved, report.Pools);
             planId = PlanStore.Save(workspace.Connection, draft, _time);
+            WithdrawRuns(workspace, withdrawn, planId.Value);
         }
 
-        return new SelectResult(selection, built, result, report, existing.Count, carried, reserved, planId);
+        var withdrawnRuns = snapshot.Runs.Where(r => !r.Rehearsal && withdrawn.Contains(r.ConfigId) && r.State is not (RunState.Finished or RunState.Failed)).Select(r => r.RunId).ToList();
+        return new SelectResult(selection, built, result, report, existing.Count, carried, reserved, planId, withdrawnRuns);
+    }
+
+    /// <summary>
+    /// Gives up the unfinished real runs of withdrawn configurations, in one transaction: their open jobs are marked
+    /// for cancelling, which the next cycle does (an unconfirmed submission is cancelled when it turns up).
+    /// </summary>
+    private void WithdrawRuns(Workspace workspace, IReadOnlySet<string> configs, long planId)
+    {
+        if (configs.Count == 0)
+        {
+            return;
+        }
+
+        var at = _time.GetUtcNow();
+        using var tx = workspace.Connection.BeginTransaction();
+        foreach (var run in TrackingStore.Runs(workspace.Connection, tx).Where(r => !r.Rehearsal && configs.Contains(r.ConfigId) && r.State is not (RunState.Finished or RunState.Failed)))
+        {
+            foreach (var segment in TrackingStore.SegmentsOf(workspace.Connection, run.RunId, tx).Where(s => s.Phase == SegmentPhase.Submitted))
+            {
+                segment.CancelFor("withdrawn");
+                TrackingStore.Save(workspace.Connection, tx, segment);
+            }
+
+            TrackingStore.Save(workspace.Connection, tx, run, run.Abandon(at, $"withdrawn from the campaign by plan {planId.ToString(System.Globalization.CultureInfo.InvariantCulture)}"));
+        }
+
+        tx.Commit();
     }
 
     /// <summary>The chosen configurations as plan rows: one per level (and the trials), with their estimate.</summary>

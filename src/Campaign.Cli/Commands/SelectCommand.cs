@@ -21,9 +21,10 @@ internal static class SelectCommand
         var trialLength = new Option<double>("--ecc-length") { Description = "Simulated length of each trial run in M (default 1500)", DefaultValueFactory = _ => 1500 };
         var leftOut = new Option<int>("--left-out") { Description = "How many of the best left-out candidates to list (default 10)", DefaultValueFactory = _ => 10 };
         var save = new Option<bool>("--save") { Description = "Store the selection as the workspace's plan (a new version; started runs are always kept)" };
+        var withdraw = new Option<bool>("--withdraw") { Description = "Withdraw the tracked configurations that --exclude names (their runs are given up, their jobs cancelled by the next cycle); without it excluding one is refused" };
         var command = new Command("select", "Choose the configurations that cover the parameter space best (or give the most value) within the budget")
         {
-            file, objective, budget, quantile, exclude, maxRuns, trials, trialLength, leftOut, save,
+            file, objective, budget, quantile, exclude, maxRuns, trials, trialLength, leftOut, save, withdraw,
         };
         app.Bind(command, context =>
         {
@@ -40,7 +41,8 @@ internal static class SelectCommand
                 context.Parse.GetValue(trials),
                 context.Parse.GetValue(trialLength),
                 Math.Max(0, context.Parse.GetValue(leftOut)),
-                context.Parse.GetValue(save));
+                context.Parse.GetValue(save),
+                context.Parse.GetValue(withdraw));
             SelectResult result;
             using (var bar = TerminalProgress.For(context, "select"))
             {
@@ -83,6 +85,7 @@ internal static class SelectCommand
                 Dropped = built.Dropped.Select(d => new { d.Id, d.Reason }),
                 PlanId = planId,
                 CarriedOver = selected.Carried.Select(c => new { c.ConfigId, c.Machine, c.RemainingCost, c.Why }),
+                Withdrawn = selected.Withdrawn ?? Array.Empty<string>(),
                 Reserved = selected.Reserved,
             });
             return;
@@ -141,6 +144,11 @@ internal static class SelectCommand
             }
 
             kept.WriteTo(o);
+        }
+
+        if (selected.Withdrawn is { Count: > 0 } gone)
+        {
+            o.WriteLine($"Withdrawn from the campaign ({(planId is null ? "would be, with --save" : "given up; their jobs are cancelled by the next cycle")}): {string.Join(", ", gone)}.");
         }
 
         if (selected.Reserved.Count > 0)

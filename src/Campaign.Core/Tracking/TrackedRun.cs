@@ -184,11 +184,11 @@ public sealed class TrackedRun
         return Move(RunState.Planned, "", "released by a human", at);
     }
 
-    /// <summary>Given up by a human.</summary>
-    public RunTransition Abandon(DateTimeOffset at)
+    /// <summary>Given up by a human (or withdrawn by a re-plan, with that reason).</summary>
+    public RunTransition Abandon(DateTimeOffset at, string why = "abandoned by a human")
     {
         ResetCounters();
-        return Move(RunState.Failed, "abandoned by a human", "abandoned by a human", at);
+        return Move(RunState.Failed, why, why, at);
     }
 
     /// <summary>Puts the run back as it was before a submission that never reached a broken machine.</summary>
