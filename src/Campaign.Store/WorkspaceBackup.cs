@@ -17,6 +17,17 @@ public sealed record BackupResult(string Destination, IReadOnlyList<string> File
 /// </summary>
 public static class WorkspaceBackup
 {
+    /// <summary>The workspace_info key a backup copy carries until its first cycle has looked later jobs up by name.</summary>
+    public const string RestoredKey = "reconcile_jobs_by_name";
+
+    /// <summary>True when the workspace's database is a backup copy whose later jobs have not been looked up yet.</summary>
+    public static bool NeedsJobLookup(SqliteConnection connection) =>
+        connection.ExecuteScalar<string?>("SELECT value FROM workspace_info WHERE key = @key", new { key = RestoredKey }) == "pending";
+
+    /// <summary>Marks the look-up after a restore as done.</summary>
+    public static void JobLookupDone(SqliteConnection connection, SqliteTransaction transaction) =>
+        connection.Execute("DELETE FROM workspace_info WHERE key = @key", new { key = RestoredKey }, transaction);
+
     public static BackupResult Write(Workspace workspace, string destination)
     {
         destination = Path.GetFullPath(destination);
@@ -58,6 +69,10 @@ public static class WorkspaceBackup
         {
             target.Open();
             workspace.Connection.BackupDatabase(target);
+
+            // The copy knows it is a copy: whoever tracks with it (after a restore) first looks up, by name, every job
+            // the workspace may have submitted after this moment, before submitting anything.
+            target.Execute("INSERT INTO workspace_info (key, value) VALUES (@key, 'pending') ON CONFLICT (key) DO UPDATE SET value = 'pending'", new { key = RestoredKey });
         }
 
         if (!OperatingSystem.IsWindows())

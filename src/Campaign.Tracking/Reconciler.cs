@@ -6,7 +6,8 @@ using Campaign.Tracking.Cycle;
 namespace Campaign.Tracking;
 
 /// <summary>
-/// One reconcile cycle over every tracked run, as small steps in order: recover intents (submissions a crash left
+/// One reconcile cycle over every tracked run, as small steps in order: once after a restore, find the jobs
+/// submitted after the backup by name; recover intents (submissions a crash left
 /// unconfirmed, looked up by job name), observe (one query per machine), end and charge segments (finish, continue
 /// from the newest valid checkpoint, hold), watch health (stalls, a growing constraint norm), submit within the
 /// budget rule; then record which machines were at fault and notify. Every state change is one SQLite transaction
@@ -33,6 +34,7 @@ public sealed class Reconciler
     public async Task<TickReport> TickAsync(CancellationToken cancellationToken)
     {
         var c = new CycleContext(_workspace, _batch, _time, _jobEnvironment);
+        await RecoverAfterRestore.RunAsync(c, cancellationToken).ConfigureAwait(false);
         await RecoverIntents.RunAsync(c, cancellationToken).ConfigureAwait(false);
         await ObserveJobs.RunAsync(c, cancellationToken).ConfigureAwait(false);
         await WatchHealth.RunAsync(c, cancellationToken).ConfigureAwait(false);

@@ -124,4 +124,39 @@ public sealed class WorkspaceFaultTests : IDisposable
             .Count(c => c.Contains("3601.25", StringComparison.Ordinal));
         Assert.Equal(0, left);
     }
+
+    [Fact]
+    public void After_a_backup_is_restored_the_first_cycle_finds_later_jobs_by_name_and_submits_none_twice()
+    {
+        // Regression (faults issue, item 4): restoring a backup and ticking queued a second job of the same name,
+        // both writing into the same run folder.
+        Runs.Cycle(A); // segment 1 of c1.L1 submitted
+        var backup = new WorkspaceAdmin(_clock).Backup(A, Path.Combine(_folder.Path, "backup"));
+        Assert.Equal("ok", backup.Integrity);
+
+        _clock.Advance(TimeSpan.FromHours(49)); // segment 1 runs into its 48 h limit; segment 2 is submitted
+        Runs.Cycle(A);
+        _clock.Advance(TimeSpan.FromHours(2));
+        Runs.Cycle(A);
+        Assert.Equal(2, _machines["halyard"].SubmittedNames.Count);
+
+        // The restore, as docs/operations.md says: stop, copy the backup's files into place, start again.
+        foreach (var side in new[] { "campaign.db-wal", "campaign.db-shm" })
+        {
+            File.Delete(Path.Combine(A, side));
+        }
+
+        File.Copy(Path.Combine(backup.Destination, "campaign.db"), Path.Combine(A, "campaign.db"), overwrite: true);
+        var report = Runs.Cycle(A);
+
+        var names = _machines["halyard"].SubmittedNames.ToList();
+        Assert.Equal(names.Count, names.Distinct().Count());
+        Assert.Equal(2, names.Count);
+        Assert.Contains(report.Messages, m => m.StartsWith("after a restore: 1 jobs submitted after the backup were found by name", StringComparison.Ordinal));
+        using var db = Workspace.Open(A, _clock);
+        var segments = TrackingStore.SegmentsOf(db.Connection, "c1.L1");
+        Assert.Equal(new[] { 1, 2 }, segments.Select(s => s.Number));
+        Assert.Equal(SegmentPhase.Ended, segments[0].Phase);
+        Assert.False(WorkspaceBackup.NeedsJobLookup(db.Connection));
+    }
 }
