@@ -52,7 +52,7 @@ public static class TickBench
 
         public Task CancelAsync(string jobId, CancellationToken cancellationToken) => Task.CompletedTask;
 
-        public Task<string?> FindAsync(string jobName, CancellationToken cancellationToken) =>
+        public Task<string?> FindAsync(string jobName, string workingDirectory, CancellationToken cancellationToken) =>
             Task.FromResult<string?>(_jobs.FirstOrDefault(j => j.Value.Name == jobName).Key);
     }
 

@@ -9,8 +9,9 @@ namespace Campaign.Batch;
 /// finished. An id the batch system no longer knows comes back as <see cref="JobState.Missing"/>; a native state
 /// the adapter does not know comes back as <see cref="JobState.Unknown"/>, never as finished.</item>
 /// <item><see cref="CancelAsync"/> asks the batch system to cancel a job; cancelling a finished job is not an error.</item>
-/// <item><see cref="FindAsync"/> looks a job up by its (unique) name, so a host that crashed between submitting and
-/// recording the id can find the job instead of submitting it twice.</item>
+/// <item><see cref="FindAsync"/> looks a job up by its (unique) name and its working folder, so a host that crashed
+/// between submitting and recording the id can find the job instead of submitting it twice, and never takes
+/// another workspace's job for its own (a job whose batch system reports another working folder is not ours).</item>
 /// </list>
 /// Adapters are small and do not retry, wait or log: they let errors propagate as
 /// <see cref="BatchSystemException"/>, classified transient (worth retrying) or permanent. Retries with backoff
@@ -29,6 +30,10 @@ public interface IBatchSystem
     /// <summary>Cancels a job (a no-op for a job that has finished).</summary>
     Task CancelAsync(string jobId, CancellationToken cancellationToken);
 
-    /// <summary>The id of the job named <paramref name="jobName"/> (the newest if several), or null when there is none.</summary>
-    Task<string?> FindAsync(string jobName, CancellationToken cancellationToken);
+    /// <summary>
+    /// The id of the job named <paramref name="jobName"/> that runs in <paramref name="workingDirectory"/> (the newest
+    /// if several), or null when there is none. Where the batch system does not report a job's folder, the name alone
+    /// decides (names carry the workspace id).
+    /// </summary>
+    Task<string?> FindAsync(string jobName, string workingDirectory, CancellationToken cancellationToken);
 }

@@ -158,7 +158,7 @@ public sealed class RunService
             {
                 try
                 {
-                    id = batch.FindAsync(segment.JobName, CancellationToken.None).GetAwaiter().GetResult();
+                    id = batch.FindAsync(segment.JobName, Path.Combine(workspace.Root, run.Folder), CancellationToken.None).GetAwaiter().GetResult();
                 }
                 catch (Batch.BatchSystemException)
                 {

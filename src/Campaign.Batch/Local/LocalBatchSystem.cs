@@ -122,8 +122,9 @@ public sealed class LocalBatchSystem : IBatchSystem
     }
 
     /// <inheritdoc />
-    public Task<string?> FindAsync(string jobName, CancellationToken cancellationToken)
+    public Task<string?> FindAsync(string jobName, string workingDirectory, CancellationToken cancellationToken)
     {
+        var folder = Path.GetFullPath(workingDirectory);
         using (Lock())
         {
             var id = Directory.EnumerateDirectories(JobsFolder)
@@ -131,7 +132,7 @@ public sealed class LocalBatchSystem : IBatchSystem
                 .OfType<string>()
                 .Where(n => long.TryParse(n, NumberStyles.None, CultureInfo.InvariantCulture, out _))
                 .OrderBy(n => long.Parse(n, CultureInfo.InvariantCulture))
-                .LastOrDefault(n => File.Exists(Files(n).RequestPath) && Files(n).ReadRequest().Name == jobName);
+                .LastOrDefault(n => File.Exists(Files(n).RequestPath) && Files(n).ReadRequest() is { } r && r.Name == jobName && Path.GetFullPath(r.WorkingDirectory) == folder);
             return Task.FromResult(id);
         }
     }

@@ -107,8 +107,10 @@ public sealed class PbsBatchSystem : IBatchSystem
     }
 
     /// <inheritdoc />
-    public async Task<string?> FindAsync(string jobName, CancellationToken cancellationToken)
+    public async Task<string?> FindAsync(string jobName, string workingDirectory, CancellationToken cancellationToken)
     {
+        // qselect cannot filter by folder; the name, which carries the workspace id, decides (docs/batch-systems.md).
+        _ = workingDirectory;
         // qselect -x -N NAME lists the ids of jobs (finished ones included) with that name.
         var result = await _runner.RunAsync(Command("qselect"), new[] { "-x", "-N", jobName }, cancellationToken).ConfigureAwait(false);
         if (result.ExitCode != 0)

@@ -44,7 +44,7 @@ public sealed class ResilientBatchSystem : IBatchSystem
         return Run(
             async token =>
             {
-                if (tried && await _inner.FindAsync(request.Name, token).ConfigureAwait(false) is { } existing)
+                if (tried && await _inner.FindAsync(request.Name, request.WorkingDirectory, token).ConfigureAwait(false) is { } existing)
                 {
                     Recovered++;
                     return existing;
@@ -74,8 +74,8 @@ public sealed class ResilientBatchSystem : IBatchSystem
             cancellationToken);
 
     /// <inheritdoc />
-    public Task<string?> FindAsync(string jobName, CancellationToken cancellationToken) =>
-        Run(token => _inner.FindAsync(jobName, token), cancellationToken);
+    public Task<string?> FindAsync(string jobName, string workingDirectory, CancellationToken cancellationToken) =>
+        Run(token => _inner.FindAsync(jobName, workingDirectory, token), cancellationToken);
 
     private async Task<T> Run<T>(Func<CancellationToken, Task<T>> call, CancellationToken cancellationToken)
     {

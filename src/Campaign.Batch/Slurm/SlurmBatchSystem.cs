@@ -156,22 +156,31 @@ public sealed class SlurmBatchSystem : IBatchSystem
     }
 
     /// <inheritdoc />
-    public async Task<string?> FindAsync(string jobName, CancellationToken cancellationToken)
+    public async Task<string?> FindAsync(string jobName, string workingDirectory, CancellationToken cancellationToken)
     {
-        var queue = await Run("squeue", new[] { "--noheader", "--me", "--states=all", "--name=" + jobName, "--format=%i" }, cancellationToken).ConfigureAwait(false);
-        var ids = queue.StandardOutput.Split('\n', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries);
-        if (ids.Length > 0)
+        // A job of that name in another folder is another workspace's (or another copy's): never ours.
+        var folder = Path.TrimEndingDirectorySeparator(Path.GetFullPath(workingDirectory));
+        bool Ours(string dir) => dir.Length == 0 || Path.TrimEndingDirectorySeparator(dir) == folder;
+        var queue = await Run("squeue", new[] { "--noheader", "--me", "--states=all", "--name=" + jobName, "--format=%i|%Z" }, cancellationToken).ConfigureAwait(false);
+        var ids = queue.StandardOutput.Split('\n', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries)
+            .Select(line => line.Split('|', 2))
+            .Where(parts => Ours(parts.Length > 1 ? parts[1] : ""))
+            .Select(parts => parts[0])
+            .ToList();
+        if (ids.Count > 0)
         {
             return ids.OrderBy(id => long.TryParse(id, NumberStyles.None, CultureInfo.InvariantCulture, out var n) ? n : 0).Last();
         }
 
-        var sacct = await Run("sacct", new[] { "--parsable2", "--noheader", "--allocations", "--name=" + jobName, "--format=JobID" }, cancellationToken, allowFailure: true).ConfigureAwait(false);
+        var sacct = await Run("sacct", new[] { "--parsable2", "--noheader", "--allocations", "--name=" + jobName, "--format=JobID,WorkDir" }, cancellationToken, allowFailure: true).ConfigureAwait(false);
         if (sacct.ExitCode == 0 && !(sacct.StandardError + sacct.StandardOutput).Contains("accounting storage is disabled", StringComparison.OrdinalIgnoreCase))
         {
-            var found = sacct.StandardOutput.Split('\n', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries).LastOrDefault();
+            var found = sacct.StandardOutput.Split('\n', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries)
+                .Select(line => line.Split('|', 2))
+                .LastOrDefault(parts => Ours(parts.Length > 1 ? parts[1] : ""));
             if (found is not null)
             {
-                return found;
+                return found[0];
             }
         }
 

@@ -39,7 +39,7 @@ internal static class RecoverAfterRestore
             {
                 var name = JobName.For(c.Workspace.Id, run.RunId, number);
                 string? id = null;
-                if (!await c.Guarded(run.Machine, $"looking up {name} after a restore", async () => id = await c.Batch(run.Machine).FindAsync(name, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false) || id is null)
+                if (!await c.Guarded(run.Machine, $"looking up {name} after a restore", async () => id = await c.Batch(run.Machine).FindAsync(name, c.Folder(run).Path, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false) || id is null)
                 {
                     break;
                 }

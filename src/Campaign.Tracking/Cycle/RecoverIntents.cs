@@ -21,7 +21,7 @@ internal static class RecoverIntents
             }
 
             string? id = null;
-            if (!await c.Guarded(run.Machine, "looking up an unconfirmed submission", async () => id = await c.Batch(run.Machine).FindAsync(segment.JobName, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
+            if (!await c.Guarded(run.Machine, "looking up an unconfirmed submission", async () => id = await c.Batch(run.Machine).FindAsync(segment.JobName, c.Folder(run).Path, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
             {
                 continue;
             }

@@ -102,10 +102,10 @@ public sealed class SimulatedMachine : IBatchSystem
         return Task.CompletedTask;
     }
 
-    public Task<string?> FindAsync(string jobName, CancellationToken cancellationToken)
+    public Task<string?> FindAsync(string jobName, string workingDirectory, CancellationToken cancellationToken)
     {
         Check();
-        return Task.FromResult(_jobs.Values.Where(j => j.Request.Name == jobName).Select(j => j.Id).LastOrDefault());
+        return Task.FromResult(_jobs.Values.Where(j => j.Request.Name == jobName && Path.GetFullPath(j.Request.WorkingDirectory) == Path.GetFullPath(workingDirectory)).Select(j => j.Id).LastOrDefault());
     }
 
     private void Check()

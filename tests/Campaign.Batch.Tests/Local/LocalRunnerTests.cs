@@ -123,12 +123,14 @@ public sealed class LocalRunnerTests : IDisposable
     }
 
     [Fact]
-    public async Task A_job_is_found_by_its_name_and_an_unknown_name_is_not()
+    public async Task A_job_is_found_by_its_name_in_its_folder_and_never_in_another_folder()
     {
         var runner = LocalRunner.Create(State);
         var id = await runner.SubmitAsync(Request("named", "exit 0"), CancellationToken.None);
-        Assert.Equal(id, await runner.FindAsync(JobName.For("t0", "named", 1), CancellationToken.None));
-        Assert.Null(await runner.FindAsync(JobName.For("t0", "never", 1), CancellationToken.None));
+        Assert.Equal(id, await runner.FindAsync(JobName.For("t0", "named", 1), _jobs.Folder, CancellationToken.None));
+        Assert.Null(await runner.FindAsync(JobName.For("t0", "never", 1), _jobs.Folder, CancellationToken.None));
+        // Regression (faults issue, item 1): a job of the same name in another folder is another workspace's.
+        Assert.Null(await runner.FindAsync(JobName.For("t0", "named", 1), Path.Combine(_jobs.Folder, "elsewhere"), CancellationToken.None));
     }
 
     [Fact]

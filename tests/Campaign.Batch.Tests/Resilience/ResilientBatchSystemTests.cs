@@ -45,7 +45,7 @@ public class ResilientBatchSystemTests
             return Task.CompletedTask;
         }
 
-        public Task<string?> FindAsync(string jobName, CancellationToken cancellationToken)
+        public Task<string?> FindAsync(string jobName, string workingDirectory, CancellationToken cancellationToken)
         {
             Calls++;
             return Task.FromResult<string?>(null);
@@ -134,7 +134,7 @@ public class ResilientBatchSystemTests
 
         public Task CancelAsync(string jobId, CancellationToken cancellationToken) => Task.CompletedTask;
 
-        public Task<string?> FindAsync(string jobName, CancellationToken cancellationToken) => Task.FromResult(_byName.GetValueOrDefault(jobName));
+        public Task<string?> FindAsync(string jobName, string workingDirectory, CancellationToken cancellationToken) => Task.FromResult(_byName.GetValueOrDefault(jobName));
     }
 
     [Fact]

@@ -39,8 +39,10 @@ public sealed class SlurmClusterTests : IDisposable
         using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var id = await slurm.SubmitAsync(_jobs.Request("findme", _jobs.Script("findme", "exit 0")), CancellationToken.None);
-        Assert.Equal(id, await slurm.FindAsync(JobName.For("t0", "findme", 1), CancellationToken.None));
-        Assert.Null(await slurm.FindAsync(JobName.For("t0", "nobody-" + Guid.NewGuid().ToString("N")[..8], 1), CancellationToken.None));
+        Assert.Equal(id, await slurm.FindAsync(JobName.For("t0", "findme", 1), _jobs.Folder, CancellationToken.None));
+        Assert.Null(await slurm.FindAsync(JobName.For("t0", "nobody-" + Guid.NewGuid().ToString("N")[..8], 1), _jobs.Folder, CancellationToken.None));
+        // Regression (faults issue, item 1): a job of the same name in another folder is another workspace's.
+        Assert.Null(await slurm.FindAsync(JobName.For("t0", "findme", 1), Path.Combine(_jobs.Folder, "elsewhere"), CancellationToken.None));
     }
 
     [SlurmFact]

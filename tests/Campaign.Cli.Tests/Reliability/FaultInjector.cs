@@ -127,8 +127,8 @@ internal sealed class FaultInjector
                 },
                 cancellationToken);
 
-        public Task<string?> FindAsync(string jobName, CancellationToken cancellationToken) =>
-            faults.Call(t => inner.FindAsync(jobName, t), cancellationToken);
+        public Task<string?> FindAsync(string jobName, string workingDirectory, CancellationToken cancellationToken) =>
+            faults.Call(t => inner.FindAsync(jobName, workingDirectory, t), cancellationToken);
     }
 
     public override string ToString() =>
