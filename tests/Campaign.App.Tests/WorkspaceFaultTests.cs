@@ -2,6 +2,7 @@ using Campaign.App.Plans;
 using Campaign.App.Runs;
 using Campaign.App.Tests.Support;
 using Campaign.App.Workspaces;
+using Campaign.Core.Domain;
 using Campaign.Core.Lifecycle;
 using Campaign.Core.Selection;
 using Campaign.Store;
@@ -158,5 +159,19 @@ public sealed class WorkspaceFaultTests : IDisposable
         Assert.Equal(new[] { 1, 2 }, segments.Select(s => s.Number));
         Assert.Equal(SegmentPhase.Ended, segments[0].Phase);
         Assert.False(WorkspaceBackup.NeedsJobLookup(db.Connection));
+    }
+
+    [Fact]
+    public void Check_refuses_a_stall_time_no_shorter_than_a_machines_segments_naming_the_line_and_the_machines()
+    {
+        // Regression (faults issue, item 10): the shipped workstation profile (2 h) with the default 120 min stall
+        // time could never see a stall. The test workspace's stall_minutes = 2880 is no shorter than any machine's limit.
+        var error = Assert.Throws<InvalidInputException>(() => new WorkspaceAdmin(_clock).Check(A));
+        var problem = Assert.Single(error.Problems);
+        Assert.Equal($"{Path.Combine(A, "campaign.toml")}:", problem[..(Path.Combine(A, "campaign.toml").Length + 1)]);
+        Assert.EndsWith(":60:1: stall_minutes = 2880: expected less than the segment wall time of every machine (halyard 2880 min, gunwale 1440 min, workbench 1440 min): a stall could never be seen before the wall-time limit ends the segment", problem, StringComparison.Ordinal);
+
+        File.WriteAllText(Path.Combine(A, "campaign.toml"), File.ReadAllText(Path.Combine(A, "campaign.toml")).Replace("stall_minutes = 2880", "stall_minutes = 600", StringComparison.Ordinal));
+        Assert.Equal("ok", new WorkspaceAdmin(_clock).Check(A).Integrity);
     }
 }

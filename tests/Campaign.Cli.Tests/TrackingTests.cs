@@ -174,7 +174,7 @@ public sealed class TrackingTests : IDisposable
         File.WriteAllText(Ws("runs/sm-q1-a00.L2.r1/payload.json"), "{\"instability_rate\": 0.02}");
         // Long segments (12 s) and a short stall time (0.6 s without new progress), so the stall is seen before a limit.
         var config = File.ReadAllText(Ws("campaign.toml"))
-            .Replace("stall_minutes = 0.5", "stall_minutes = 0.01", StringComparison.Ordinal)
+            .Replace("stall_minutes = 0.045", "stall_minutes = 0.01", StringComparison.Ordinal)
             .Replace("segment_minutes = 0.05", "segment_minutes = 0.2", StringComparison.Ordinal);
         File.WriteAllText(Ws("campaign.toml"), config);
         TickUntilIdle(TimeSpan.FromSeconds(120));

@@ -1,3 +1,4 @@
+using System.Globalization;
 using Campaign.Core.Domain;
 using Campaign.Store;
 using Dapper;
@@ -38,13 +39,45 @@ public sealed class WorkspaceAdmin
     public IReadOnlyList<string> Create(string root, string configText, IReadOnlyDictionary<string, string> profiles, bool force) =>
         WorkspaceCreator.Create(root, new WorkspaceTemplate(configText, profiles), force, _time);
 
-    /// <summary>Validates config, profiles and database.</summary>
+    /// <summary>Validates config, profiles and database, and how they fit together.</summary>
     public WorkspaceCheck Check(string root)
     {
+        var problems = StallProblems(root);
+        if (problems.Count > 0)
+        {
+            throw new InvalidInputException(problems);
+        }
+
         using var workspace = Workspace.Open(root, _time);
         var schema = workspace.Connection.ExecuteScalar<long>("PRAGMA user_version");
         var integrity = workspace.Connection.ExecuteScalar<string>("PRAGMA quick_check") ?? "";
         return new WorkspaceCheck(workspace.Root, workspace.Config, workspace.Machines, schema, integrity);
+    }
+
+    /// <summary>
+    /// A stall (no progress for stall_minutes while running) can only be seen within a segment: a machine whose
+    /// segment wall time is not longer than stall_minutes would let a code that never advances run segment after
+    /// segment. Every such machine is named, with the line of stall_minutes in campaign.toml.
+    /// </summary>
+    private static IReadOnlyList<string> StallProblems(string root)
+    {
+        var (config, machines) = Workspace.ReadSettings(root);
+        var stall = config.Tracking.StallMinutes;
+        var tooShort = config.Machines
+            .Select(m => (Machine: m, Wall: config.Tracking.SegmentMinutes ?? machines[m].WallLimitHours * 60))
+            .Where(m => m.Wall <= stall)
+            .ToList();
+        if (tooShort.Count == 0)
+        {
+            return Array.Empty<string>();
+        }
+
+        var path = Path.Combine(Path.GetFullPath(root), Workspace.ConfigFileName);
+        var lines = File.ReadAllLines(path);
+        var line = Array.FindIndex(lines, l => l.TrimStart().StartsWith("stall_minutes", StringComparison.Ordinal));
+        var where = line < 0 ? $"{path}: [tracking] stall_minutes (default)" : $"{path}:{(line + 1).ToString(CultureInfo.InvariantCulture)}:{(lines[line].IndexOf('s', StringComparison.Ordinal) + 1).ToString(CultureInfo.InvariantCulture)}: stall_minutes";
+        var walls = string.Join(", ", tooShort.Select(m => $"{m.Machine} {m.Wall.ToString("0.###", CultureInfo.InvariantCulture)} min"));
+        return new[] { $"{where} = {stall.ToString("0.###", CultureInfo.InvariantCulture)}: expected less than the segment wall time of every machine ({walls}): a stall could never be seen before the wall-time limit ends the segment" };
     }
 
     /// <summary>A consistent copy of the workspace's database, config and profiles.</summary>

@@ -18,7 +18,7 @@ public static class SlurmWorkspace
             .Replace("machines = [\"halyard\", \"gunwale\", \"workbench\"]", "machines = [\"halyard\", \"gunwale\", \"workbench\", \"minislurm\"]", StringComparison.Ordinal)
             .Replace("segment_minutes = 0.05", "segment_minutes = 1" + (prequeue ? "\nprequeue = true" : ""), StringComparison.Ordinal)
             .Replace("warning_seconds = 1", "warning_seconds = " + warningSeconds.ToString(System.Globalization.CultureInfo.InvariantCulture), StringComparison.Ordinal)
-            .Replace("stall_minutes = 0.5", "stall_minutes = 5", StringComparison.Ordinal);
+            .Replace("stall_minutes = 0.045", "stall_minutes = 5", StringComparison.Ordinal);
         File.WriteAllText(Path.Combine(ws, "campaign.toml"), config);
         var track = new[] { "--dir", "ws", "track", "--on", "minislurm", "--cores", "1", "--only", "sm-q1-a00" };
         Assert.Equal(0, CliRun.Live(folder, rehearsal ? track.Append("--rehearsal").ToArray() : track).ExitCode);
