@@ -252,7 +252,9 @@ public sealed class TrackingTests : IDisposable
         Prepare("sm-q1-a00", rehearsal: true);
         File.WriteAllText(Ws("stuck.sh"), "#!/bin/sh\ntrap '' USR1\nsleep 60\n");
         File.SetUnixFileMode(Ws("stuck.sh"), (UnixFileMode)Convert.ToInt32("755", 8));
-        var config = File.ReadAllText(Ws("campaign.toml")).Replace("script = \"run-segment.sh\"", "script = \"stuck.sh\"", StringComparison.Ordinal);
+        // (The stall rule is set aside here, at 10 min, so that only the counting of timeouts can end it.)
+        var config = File.ReadAllText(Ws("campaign.toml")).Replace("script = \"run-segment.sh\"", "script = \"stuck.sh\"", StringComparison.Ordinal)
+            .Replace("stall_minutes = 0.045", "stall_minutes = 10", StringComparison.Ordinal);
         File.WriteAllText(Ws("campaign.toml"), config);
         TickUntilIdle(TimeSpan.FromSeconds(120));
 
