@@ -171,10 +171,7 @@ public sealed class CycleStepTests : IDisposable
         // (two events and two notices a cycle) and the health checks, which look at running runs, never ran.
         using var other = new TempFolder();
         var ws = Path.Combine(other.Path, "ws");
-        TestWorkspace.Create(ws, _clock, "prequeue = true\n");
-        File.WriteAllText(Path.Combine(ws, "one.csv"), "id,q,chi1z,omega0,levels,cores,cluster,core_hours\nsm-a,2,0,0.02,1,128,halyard,100000\n");
-        new PlanService(_clock).Select(new SelectRequest(ws, Path.Combine(ws, "one.csv"), "one.csv", SelectionObjective.Coverage, 1e7, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
-        new TrackService(_clock).Track(new TrackRequest(ws, null, null, null, false));
+        TestWorkspace.CreateTracking(ws, _clock, "sm-a,2,0,0.02,1,128,halyard,100000\n", "prequeue = true\n");
         var machines = new Dictionary<string, SimulatedMachine>(StringComparer.Ordinal);
         foreach (var profile in Workspaces.WorkspaceAdmin.Settings(ws).Machines.Values)
         {

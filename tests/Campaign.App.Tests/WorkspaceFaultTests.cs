@@ -20,10 +20,7 @@ public sealed class WorkspaceFaultTests : IDisposable
     {
         foreach (var ws in new[] { A, B })
         {
-            TestWorkspace.Create(ws, _clock);
-            File.WriteAllText(Path.Combine(ws, "one.csv"), "id,q,chi1z,omega0,levels,cores,cluster,core_hours\nc1,2,0,0.02,1,128,halyard,100000\n");
-            new PlanService(_clock).Select(new SelectRequest(ws, Path.Combine(ws, "one.csv"), "one.csv", SelectionObjective.Coverage, 1e7, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
-            new TrackService(_clock).Track(new TrackRequest(ws, null, null, null, false));
+            TestWorkspace.CreateTracking(ws, _clock, "c1,2,0,0.02,1,128,halyard,100000\n");
         }
 
         // One queue shared by both workspaces, as one user's queue on one cluster.
@@ -107,10 +104,7 @@ public sealed class WorkspaceFaultTests : IDisposable
         // Regression (faults issue, item 12): ["sleep", "3600"] blocked 30 s per notice and left its processes running.
         using var other = new TempFolder();
         var ws = Path.Combine(other.Path, "ws");
-        TestWorkspace.Create(ws, _clock, "notify_command = [\"sleep\", \"3601.25\"]\n");
-        File.WriteAllText(Path.Combine(ws, "three.csv"), "id,q,chi1z,omega0,levels,cores,cluster,core_hours\nc1,2,0,0.02,1;2;3,128,halyard,100000\n");
-        new PlanService(_clock).Select(new SelectRequest(ws, Path.Combine(ws, "three.csv"), "three.csv", SelectionObjective.Coverage, 1e7, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
-        new TrackService(_clock).Track(new TrackRequest(ws, null, null, null, false));
+        TestWorkspace.CreateTracking(ws, _clock, "c1,2,0,0.02,1;2;3,128,halyard,100000\n", "notify_command = [\"sleep\", \"3601.25\"]\n");
 
         var watch = System.Diagnostics.Stopwatch.StartNew();
         var report = Runs.Cycle(ws); // three runs go planned -> queued: three notices

@@ -426,7 +426,10 @@ public static partial class TomlDocument
 
         private int _depth;
 
-        private TomlValue ReadArray(int line, int column, int start)
+        private TomlValue ReadArray(int line, int column, int start) => Nested(line, column, () => ReadArrayItems(line, column, start));
+
+        /// <summary>Reads one nested value (an array or an inline table), refusing nesting deeper than <see cref="MaxDepth"/>.</summary>
+        private TomlValue Nested(int line, int column, Func<TomlValue> read)
         {
             if (++_depth > MaxDepth)
             {
@@ -435,7 +438,7 @@ public static partial class TomlDocument
 
             try
             {
-                return ReadArrayItems(line, column, start);
+                return read();
             }
             finally
             {
@@ -474,22 +477,7 @@ public static partial class TomlDocument
             }
         }
 
-        private TomlValue ReadInlineTable(int line, int column, int start)
-        {
-            if (++_depth > MaxDepth)
-            {
-                throw Error($"arrays and inline tables nested more than {MaxDepth} deep: expected a flat value", line, column);
-            }
-
-            try
-            {
-                return ReadInlineTableItems(line, column, start);
-            }
-            finally
-            {
-                _depth--;
-            }
-        }
+        private TomlValue ReadInlineTable(int line, int column, int start) => Nested(line, column, () => ReadInlineTableItems(line, column, start));
 
         private TomlValue ReadInlineTableItems(int line, int column, int start)
         {

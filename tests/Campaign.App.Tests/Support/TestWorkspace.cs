@@ -1,5 +1,8 @@
 using System.Text.RegularExpressions;
+using Campaign.App.Plans;
+using Campaign.App.Runs;
 using Campaign.App.Workspaces;
+using Campaign.Core.Selection;
 
 namespace Campaign.App.Tests.Support;
 
@@ -18,5 +21,14 @@ public static class TestWorkspace
         File.Copy(Path.Combine(demo, "candidates-small.csv"), Path.Combine(root, "candidates.csv"));
         File.WriteAllText(Path.Combine(root, "run-segment.sh"), "#!/bin/sh\n");
         File.SetUnixFileMode(Path.Combine(root, "run-segment.sh"), (UnixFileMode)Convert.ToInt32("755", 8));
+    }
+
+    /// <summary>A workspace whose plan is the configurations of <paramref name="candidates"/> (CSV rows with core_hours), all tracked.</summary>
+    public static void CreateTracking(string root, TimeProvider clock, string candidates, string extraTracking = "")
+    {
+        Create(root, clock, extraTracking);
+        File.WriteAllText(Path.Combine(root, "plan.csv"), "id,q,chi1z,omega0,levels,cores,cluster,core_hours\n" + candidates);
+        new PlanService(clock).Select(new SelectRequest(root, Path.Combine(root, "plan.csv"), "plan.csv", SelectionObjective.Coverage, 1e7, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
+        new TrackService(clock).Track(new TrackRequest(root, null, null, null, false));
     }
 }
