@@ -118,7 +118,6 @@ public sealed class PlanService
             allocations,
             request.Exclude.Where(id => !carriedIds.Contains(id) && !givenUp.Contains(id) && !withdrawn.Contains(id)).ToHashSet(StringComparer.Ordinal),
             request.MaxRuns is { } cap and >= 1 ? Math.Max(1, cap - carried.Count) : request.MaxRuns, // the carried count against the cap; a bad cap is refused by the builder
-            new Dictionary<string, string>(),
             reserved);
         var estimateOptions = new EstimateOptions { EccentricityTrials = request.EccentricityTrials, EccentricityTrialLength = request.EccentricityTrialLength };
         var open = candidates.Where(c => !carriedIds.Contains(c.Id) && !givenUp.Contains(c.Id) && !withdrawn.Contains(c.Id)).ToList();

@@ -11,7 +11,6 @@ namespace Campaign.Core.Selection;
 /// <param name="Allocations">Charged core-hours per machine (one pool each), used when <paramref name="Budget"/> is null.</param>
 /// <param name="Exclude">Candidate ids never to choose.</param>
 /// <param name="MaxRuns">Most configurations to choose.</param>
-/// <param name="Forced">Configurations already started in the current plan: id to the machine they run on. They are kept, even if excluded.</param>
 /// <param name="Reserved">Budget already gone per machine: spent so far and what the started runs still need (taken off before choosing).</param>
 public sealed record SelectionRequest(
     SelectionObjective Objective,
@@ -20,7 +19,6 @@ public sealed record SelectionRequest(
     IReadOnlyDictionary<string, double> Allocations,
     IReadOnlySet<string> Exclude,
     int? MaxRuns,
-    IReadOnlyDictionary<string, string> Forced,
     IReadOnlyDictionary<string, double>? Reserved = null);
 
 /// <summary>A candidate as the selector sees it, with the estimate rows behind each of its options.</summary>
@@ -80,13 +78,13 @@ public static class SelectionBuilder
 
         int? PoolOf(string machine) => request.Budget is not null ? 0 : pools.FindIndex(p => p.Name == machine) is var i and >= 0 ? i : null;
 
-        var kept = candidates.Where(c => !request.Exclude.Contains(c.Id) || request.Forced.ContainsKey(c.Id)).ToList();
+        var kept = candidates.Where(c => !request.Exclude.Contains(c.Id)).ToList();
         var dropped = new List<(string, string)>();
         var copies = new List<(int Candidate, string Machine, Candidate Copy)>();
         for (var k = 0; k < kept.Count; k++)
         {
             var c = kept[k];
-            var allowed = request.Forced.TryGetValue(c.Id, out var forcedMachine) ? new[] { forcedMachine } : c.Machines.ToArray();
+            var allowed = c.Machines.ToArray();
             foreach (var m in allowed.Where(m => PoolOf(m) is not null))
             {
                 copies.Add((k, m, c with { Id = c.Id + "@" + m, Machine = m, Machines = new[] { m } }));
@@ -104,7 +102,7 @@ public static class SelectionBuilder
             if (mine.Count == 0)
             {
                 var reason = $"no budget on its machines ({string.Join(", ", c.Machines)})";
-                if (c.Must || request.Forced.ContainsKey(c.Id))
+                if (c.Must)
                 {
                     throw new InvalidInputException(new[] { $"{c.Id}: must run, but {reason}: expected an allocation for one of its machines, or --budget" });
                 }
@@ -118,7 +116,7 @@ public static class SelectionBuilder
                 var rows = rowsByCopy[x.Copy.Id];
                 return new SelectionOption(PoolOf(x.Machine)!.Value, x.Machine, rows.Sum(r => r.ChargedAt(request.Quantile)), rows.Sum(r => r.ChargedCoreHours), rows.Sum(r => r.ChargedHigh));
             }).ToList();
-            selectionCandidates.Add(new SelectionCandidate(c.Id, space.Coordinates(c.Spec.Configuration), c.Value, c.Must || request.Forced.ContainsKey(c.Id), options));
+            selectionCandidates.Add(new SelectionCandidate(c.Id, space.Coordinates(c.Spec.Configuration), c.Value, c.Must, options));
             entries.Add(new SelectionEntry(c, mine.Select(x => rowsByCopy[x.Copy.Id]).ToList()));
         }
 
