@@ -15,7 +15,7 @@ var machines = new[] { ("halyard", 1.0, 128, new[] { 128, 256, 384, 512 }, 48.0)
 var massRatios = new[] { 1.0, 1.5, 2, 2.5, 3, 4, 5, 6, 7, 8 };
 var settings = new LengthSettings();
 var start = new DateTimeOffset(2025, 1, 6, 8, 0, 0, TimeSpan.Zero);
-Console.WriteLine("run_id,q,chi1x,chi1y,chi1z,chi2x,chi2y,chi2z,omega0,level,cores,cluster,wall_hours,outcome,core_hours,t_end,segments,checkpoint_gb,output_gb,started,finished,notes");
+Console.WriteLine("run_id,q,chi1x,chi1y,chi1z,chi2x,chi2y,chi2z,omega0,level,cores,cluster,wall_hours,outcome,core_hours,t_end,legs,checkpoint_gb,output_gb,started,finished,notes");
 var run = 0;
 for (var c = 0; c < 46; c++)
 {
@@ -54,16 +54,16 @@ for (var c = 0; c < 46; c++)
         var reached = outcome == "completed" ? planned : outcome == "partial" ? planned * (0.3 + 0.6 * random.NextDouble()) : planned * 0.15 * random.NextDouble();
         coreHours *= reached / planned;
         var wall = coreHours / cores;
-        var segments = (int)Math.Max(1, Math.Ceiling(wall / (wallLimit - 0.5)));
+        var legs = (int)Math.Max(1, Math.Ceiling(wall / (wallLimit - 0.5)));
         var nodes = (cores + coresPerNode - 1) / coresPerNode;
         var charged = machine == "halyard" ? wall * nodes * coresPerNode : wall * cores * 0.8;
         var checkpoint = Math.Pow(2, level) * 1.5 * Math.Pow(q, 0.3) * Math.Exp(0.1 * Normal());
         var output = 0.8 * Math.Pow(2, level) * reached / 1000 * Math.Exp(0.15 * Normal());
         var started = start.AddHours(run * 60 + random.Next(48));
-        var finished = started.AddHours(wall * 1.6 + 24 * segments * random.NextDouble());
+        var finished = started.AddHours(wall * 1.6 + 24 * legs * random.NextDouble());
         Console.WriteLine(string.Join(",",
             $"sr-{run:D3}", F(q), F(chi1.Item1), F(chi1.Item2), F(chi1.Item3), F(chi2.Item1), F(chi2.Item2), F(chi2.Item3), F(omega0),
             level.ToString(inv), cores.ToString(inv), machine, F(wall, "F2"), outcome, F(charged, "F0"), outcome == "failed" ? "" : F(reached, "F0"),
-            segments.ToString(inv), F(checkpoint, "F2"), F(output, "F1"), started.ToString("yyyy-MM-ddTHH:mm:ssZ", inv), finished.ToString("yyyy-MM-ddTHH:mm:ssZ", inv), trialLength > 0 ? "eccentricity trial" : notes));
+            legs.ToString(inv), F(checkpoint, "F2"), F(output, "F1"), started.ToString("yyyy-MM-ddTHH:mm:ssZ", inv), finished.ToString("yyyy-MM-ddTHH:mm:ssZ", inv), trialLength > 0 ? "eccentricity trial" : notes));
     }
 }

@@ -201,7 +201,7 @@ public static class Quick
             {
                 var (first, started, steady, turnover, queries) = TickBench.Measure(n);
                 ticks.Add((n, steady));
-                Console.WriteLine(string.Create(Inv, $"  {n,7} runs: first cycle (submits all) {first:F2} s, cycle seeing all start {started:F2} s, steady cycle {steady:F2} s, cycle with 10% of segments ended {turnover:F2} s; batch queries per cycle {queries}"));
+                Console.WriteLine(string.Create(Inv, $"  {n,7} runs: first cycle (submits all) {first:F2} s, cycle seeing all start {started:F2} s, steady cycle {steady:F2} s, cycle with 10% of legs ended {turnover:F2} s; batch queries per cycle {queries}"));
             }
 
             Exponent("steady cycle", ticks);

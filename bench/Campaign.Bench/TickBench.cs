@@ -26,9 +26,9 @@ public static class TickBench
         {
             foreach (var id in _jobs.Keys.ToList())
             {
-                if (_jobs[id].State == JobState.Running && random.NextDouble() < share)
+                if (_jobs[id].State == JobState.Working && random.NextDouble() < share)
                 {
-                    _jobs[id] = (_jobs[id].Name, JobState.TimedOut);
+                    _jobs[id] = (_jobs[id].Name, JobState.OutOfTime);
                 }
             }
         }
@@ -37,7 +37,7 @@ public static class TickBench
         {
             Submissions++;
             var id = (++_next).ToString(System.Globalization.CultureInfo.InvariantCulture);
-            _jobs[id] = (request.Name, JobState.Running);
+            _jobs[id] = (request.Name, JobState.Working);
             return Task.FromResult(id);
         }
 
@@ -45,8 +45,8 @@ public static class TickBench
         {
             Queries++;
             IReadOnlyDictionary<string, JobStatus> result = jobIds.ToDictionary(id => id, id => _jobs.TryGetValue(id, out var job)
-                ? new JobStatus(id, job.State, job.State.ToString(), job.State == JobState.TimedOut ? 0 : null, null, job.State == JobState.TimedOut ? TimeSpan.FromHours(1) : null, 1, job.Name)
-                : new JobStatus(id, JobState.Missing, "missing"));
+                ? new JobStatus(id, job.State, job.State.ToString(), job.State == JobState.OutOfTime ? 0 : null, null, job.State == JobState.OutOfTime ? TimeSpan.FromHours(1) : null, 1, job.Name)
+                : new JobStatus(id, JobState.Vanished, "missing"));
             return Task.FromResult(result);
         }
 
@@ -62,7 +62,7 @@ public static class TickBench
         machines = ["simulated"]
 
         [tracking]
-        segment_minutes = 60
+        leg_minutes = 60
         """;
 
     private const string Profile = """
@@ -76,7 +76,7 @@ public static class TickBench
         max_jobs_running = 1000000
         """;
 
-    /// <summary>Times the cycles over <paramref name="runs"/> tracked runs: the first (submits all), the one that sees them start, a steady one, and one where 10% of the segments ended.</summary>
+    /// <summary>Times the cycles over <paramref name="runs"/> tracked runs: the first (submits all), the one that sees them start, a steady one, and one where 10% of the legs ended.</summary>
     public static (double First, double Started, double Steady, double Turnover, int QueriesPerTick) Measure(int runs)
     {
         var folder = Directory.CreateTempSubdirectory("campaign-bench-tick-").FullName;
@@ -84,7 +84,7 @@ public static class TickBench
         {
             var time = TimeProvider.System;
             WorkspaceCreator.Create(folder, new WorkspaceTemplate(Config, new Dictionary<string, string> { ["simulated.toml"] = Profile }), force: true, time);
-            File.WriteAllText(Path.Combine(folder, "run-segment.sh"), "#!/bin/sh\n");
+            File.WriteAllText(Path.Combine(folder, "run-leg.sh"), "#!/bin/sh\n");
             using (var workspace = Workspace.Open(folder, time))
             using (var tx = workspace.Connection.BeginTransaction())
             {
@@ -109,13 +109,13 @@ public static class TickBench
                 return watch.Elapsed.TotalSeconds;
             }
 
-            var first = Tick(); // submits every run's first segment
+            var first = Tick(); // submits every run's first leg
             var started = Tick(); // sees them all running (a state change per run)
             batch.Queries = 0;
             var steady = Tick(); // nothing changed
             var queries = batch.Queries;
             batch.EndSome(0.1, new Random(3));
-            var turnover = Tick(); // 10% of the segments ended: recorded, next segments submitted
+            var turnover = Tick(); // 10% of the legs ended: recorded, next legs submitted
             return (first, started, steady, turnover, queries);
         }
         finally

@@ -3,11 +3,11 @@ namespace Campaign.Batch;
 /// <summary>
 /// The contract every batch-system adapter fulfils (local processes, Slurm, PBS).
 /// <list type="bullet">
-/// <item><see cref="SubmitAsync"/> queues one job segment and returns the batch system's job id.</item>
+/// <item><see cref="SubmitAsync"/> queues one job leg and returns the batch system's job id.</item>
 /// <item><see cref="QueryAsync"/> returns the status of many jobs in one call (one batch-system query per call,
 /// however many ids), including final state, exit code, signal, elapsed time and charged cores once a job has
-/// finished. An id the batch system no longer knows comes back as <see cref="JobState.Missing"/>; a native state
-/// the adapter does not know comes back as <see cref="JobState.Unknown"/>, never as finished.</item>
+/// finished. An id the batch system no longer knows comes back as <see cref="JobState.Vanished"/>; a native state
+/// the adapter does not know comes back as <see cref="JobState.Unrecognised"/>, never as finished.</item>
 /// <item><see cref="CancelAsync"/> asks the batch system to cancel a job; cancelling a finished job is not an error.</item>
 /// <item><see cref="FindAsync"/> looks a job up by its (unique) name and its working folder, so a host that crashed
 /// between submitting and recording the id can find the job instead of submitting it twice, and never takes
@@ -21,7 +21,7 @@ namespace Campaign.Batch;
 /// </summary>
 public interface IBatchSystem
 {
-    /// <summary>Submits a job segment; returns its job id.</summary>
+    /// <summary>Submits a job leg; returns its job id.</summary>
     Task<string> SubmitAsync(JobRequest request, CancellationToken cancellationToken);
 
     /// <summary>Statuses of every id in <paramref name="jobIds"/>, keyed by id, in one batch-system query.</summary>

@@ -6,8 +6,8 @@ using System.Text.RegularExpressions;
 namespace Campaign.Batch;
 
 /// <summary>
-/// Job names that carry the workspace, the run id and the segment number and are safe for every batch system:
-/// "cmp.WORKSPACE.RUNID.sNNN", at most 64 characters, made of letters, digits, '.', '-' and '_' only, so no quoting
+/// Job names that carry the workspace, the run id and the leg number and are safe for every batch system:
+/// "cmp.WORKSPACE.RUNID.legNNN", at most 64 characters, made of letters, digits, '.', '-' and '_' only, so no quoting
 /// is ever needed. The workspace id keeps two workspaces of one user apart in one queue. The mapping is one to one:
 /// run ids (letters, digits, '.', '-', '_') are kept as they are, and an id too long for the room left keeps its
 /// start and ends in a hash of the whole id, so two runs never share a job name.
@@ -17,8 +17,17 @@ public static partial class JobName
     /// <summary>What a valid name looks like, for messages.</summary>
     public const string Rule = "1 to 64 characters: letters, digits, '.', '-' or '_'";
 
-    /// <summary>The name of segment <paramref name="segment"/> of run <paramref name="runId"/> of workspace <paramref name="workspaceId"/>.</summary>
-    public static string For(string workspaceId, string runId, int segment)
+    /// <summary>The name of leg <paramref name="leg"/> of run <paramref name="runId"/> of workspace <paramref name="workspaceId"/>.</summary>
+    public static string For(string workspaceId, string runId, int leg) => Build(workspaceId, runId, ".leg" + leg.ToString("D3", CultureInfo.InvariantCulture));
+
+    /// <summary>
+    /// The name that workspaces before schema version 9 gave leg <paramref name="leg"/> of the run then called
+    /// <paramref name="formerRunId"/>: looked up beside the current name after an upgrade, so a job submitted before
+    /// it is found and never submitted again.
+    /// </summary>
+    public static string Former(string workspaceId, string formerRunId, int leg) => Build(workspaceId, formerRunId, ".s" + leg.ToString("D3", CultureInfo.InvariantCulture));
+
+    private static string Build(string workspaceId, string runId, string suffix)
     {
         var clean = new StringBuilder();
         foreach (var c in runId)
@@ -26,7 +35,6 @@ public static partial class JobName
             clean.Append(char.IsAsciiLetterOrDigit(c) || c is '-' or '_' or '.' ? c : '_');
         }
 
-        var suffix = ".s" + segment.ToString("D3", CultureInfo.InvariantCulture);
         var prefix = "cmp." + (workspaceId.Length > 0 ? workspaceId + "." : "");
         var room = 64 - prefix.Length - suffix.Length;
         var id = clean.ToString();

@@ -5,8 +5,8 @@ namespace Campaign.Batch;
 /// <param name="SecondsBefore">How long before the limit (Slurm may deliver it up to a minute earlier).</param>
 public sealed record WarningSignal(string Signal, int SecondsBefore);
 
-/// <summary>One job segment to submit.</summary>
-/// <param name="Name">Job name, made with <see cref="JobName"/> (carries the run id and segment number).</param>
+/// <summary>One job leg to submit.</summary>
+/// <param name="Name">Job name, made with <see cref="JobName"/> (carries the run id and leg number).</param>
 /// <param name="Script">Path of the executable batch script.</param>
 /// <param name="WorkingDirectory">Folder the job runs in.</param>
 /// <param name="Cores">Cores (tasks) the job needs.</param>

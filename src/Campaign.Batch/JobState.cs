@@ -1,69 +1,81 @@
 namespace Campaign.Batch;
 
 /// <summary>
-/// Campaign's own normalised job states; every adapter maps its native states onto these (tables in
-/// docs/batch-systems.md).
+/// Campaign's own job states: the few distinctions the tracker acts on, the same for every back end. Each adapter
+/// maps its batch system's native states onto these (tables in docs/batch-systems.md); the native state is kept
+/// beside it and shown labelled as the batch system's own ("slurm RUNNING", "pbs R").
 /// </summary>
 public enum JobState
 {
-    /// <summary>Waiting to start (queued, held, waiting for a dependency or resources).</summary>
-    Pending,
+    /// <summary>In the queue and not using cores: queued, held, waiting for a dependency, put back in the queue.</summary>
+    Waiting,
 
-    /// <summary>Running (also: being configured or resized, or signalled).</summary>
-    Running,
+    /// <summary>Holding its cores: running, or finishing up before its outcome is known.</summary>
+    Working,
 
-    /// <summary>Suspended or stopped; may resume.</summary>
-    Suspended,
+    /// <summary>Suspended or stopped by the batch system; it may resume.</summary>
+    Paused,
 
-    /// <summary>Finished its work, cleaning up (COMPLETING, staging out): final state not known yet.</summary>
-    Finishing,
+    /// <summary>Ended by its own script with exit code 0.</summary>
+    Succeeded,
 
-    /// <summary>Put back in the queue by the batch system (requeued); it will run again.</summary>
-    Requeued,
+    /// <summary>Ended at its wall-time limit.</summary>
+    OutOfTime,
 
-    /// <summary>Ended with exit code 0.</summary>
-    Completed,
+    /// <summary>Ended badly by its own doing: a non-zero exit, a signal, its memory exceeded, or its script could not start.</summary>
+    Crashed,
 
-    /// <summary>Ended with a non-zero exit code or a signal.</summary>
-    Failed,
+    /// <summary>Ended by the machine, not by the job: a node went down, or the job was pre-empted.</summary>
+    Interrupted,
 
-    /// <summary>Cancelled by a user or an administrator.</summary>
-    Cancelled,
+    /// <summary>Cancelled, by a person or by the tracker.</summary>
+    Stopped,
 
-    /// <summary>Stopped at its wall-time limit.</summary>
-    TimedOut,
-
-    /// <summary>Ended because a node it ran on failed.</summary>
-    NodeFailed,
-
-    /// <summary>Ended because a higher-priority job took its resources.</summary>
-    Preempted,
-
-    /// <summary>Killed for exceeding its memory.</summary>
-    OutOfMemory,
-
-    /// <summary>Could not start (node boot or launch failure).</summary>
-    LaunchFailed,
-
-    /// <summary>Ended because it could not finish before its deadline.</summary>
-    DeadlineMissed,
-
-    /// <summary>A native state this adapter does not know. Never treated as finished.</summary>
-    Unknown,
+    /// <summary>A native state the adapter does not know. Never treated as ended.</summary>
+    Unrecognised,
 
     /// <summary>The batch system does not know the job id (never submitted, or forgotten with no record left).</summary>
-    Missing,
+    Vanished,
 }
 
 /// <summary>Questions about <see cref="JobState"/>.</summary>
 public static class JobStates
 {
     /// <summary>True for the states after which the job will not run again.</summary>
-    public static bool IsFinal(this JobState state) => state is JobState.Completed or JobState.Failed or JobState.Cancelled
-        or JobState.TimedOut or JobState.NodeFailed or JobState.Preempted or JobState.OutOfMemory or JobState.LaunchFailed
-        or JobState.DeadlineMissed;
+    public static bool IsFinal(this JobState state) => state is JobState.Succeeded or JobState.OutOfTime or JobState.Crashed
+        or JobState.Interrupted or JobState.Stopped;
 
     /// <summary>True while the job may still run or is running.</summary>
-    public static bool IsActive(this JobState state) => state is JobState.Pending or JobState.Running or JobState.Suspended
-        or JobState.Finishing or JobState.Requeued;
+    public static bool IsActive(this JobState state) => state is JobState.Waiting or JobState.Working or JobState.Paused;
+
+    /// <summary>The name stored and shown: snake_case ("out_of_time").</summary>
+    public static string Name(this JobState state) => state switch
+    {
+        JobState.OutOfTime => "out_of_time",
+        _ => state.ToString().ToLowerInvariant(),
+    };
+
+    /// <summary>Every state by its stored name.</summary>
+    public static readonly IReadOnlyDictionary<string, JobState> ByName =
+        Enum.GetValues<JobState>().ToDictionary(s => s.Name(), s => s, StringComparer.Ordinal);
+
+    /// <summary>
+    /// How a job ended, in words: "exit 0", "exit 3", "signal 10 (USR1)". The signal is named when it is one of the
+    /// common POSIX ones. Empty when nothing is known.
+    /// </summary>
+    public static string Exit(int? exitCode, int? signal)
+    {
+        if (signal is > 0 and var s)
+        {
+            return SignalNames.TryGetValue(s, out var name) ? $"signal {s} ({name})" : $"signal {s}";
+        }
+
+        return exitCode is { } code ? $"exit {code}" : "";
+    }
+
+    private static readonly Dictionary<int, string> SignalNames = new()
+    {
+        [1] = "HUP", [2] = "INT", [3] = "QUIT", [4] = "ILL", [6] = "ABRT", [7] = "BUS", [8] = "FPE", [9] = "KILL",
+        [10] = "USR1", [11] = "SEGV", [12] = "USR2", [13] = "PIPE", [14] = "ALRM", [15] = "TERM", [24] = "XCPU",
+    };
 }

@@ -22,5 +22,5 @@ public sealed record JobStatus(
     string? Source = null)
 {
     /// <summary>A job the batch system does not know.</summary>
-    public static JobStatus MissingFor(string jobId) => new(jobId, JobState.Missing, "not found");
+    public static JobStatus MissingFor(string jobId) => new(jobId, JobState.Vanished, "not found");
 }

@@ -282,15 +282,15 @@ public static class ReportWriter
                 .Append("<figcaption>").Append(E(caption)).Append(" Also as <a href=\"").Append(name).Append(".svg\">SVG</a> and <a href=\"").Append(name).Append(".png\">PNG</a>.</figcaption></figure>\n");
         }
 
-        b.Append("<h2>Proposal table</h2>\n<table><thead><tr><th>configuration</th><th>level</th><th>machine</th><th>median core-h</th><th>90% interval</th><th>charged core-h</th><th>segments</th></tr></thead><tbody>\n");
+        b.Append("<h2>Proposal table</h2>\n<table><thead><tr><th>configuration</th><th>level</th><th>machine</th><th>median core-h</th><th>90% interval</th><th>charged core-h</th><th>legs</th></tr></thead><tbody>\n");
         foreach (var r in data.Proposal)
         {
             b.Append("<tr><td>").Append(E(r.Id)).Append("</td><td>").Append(r.Level).Append("</td><td>").Append(E(r.Machine)).Append("</td><td>").Append(N(r.Median)).Append("</td><td>")
-                .Append(N(r.Low)).Append(" - ").Append(N(r.High)).Append("</td><td>").Append(N(r.Charged)).Append("</td><td>").Append(r.Segments).Append("</td></tr>\n");
+                .Append(N(r.Low)).Append(" - ").Append(N(r.High)).Append("</td><td>").Append(N(r.Charged)).Append("</td><td>").Append(r.Legs).Append("</td></tr>\n");
         }
 
         b.Append("<tr><th>total</th><th></th><th></th><th>").Append(N(data.Proposal.Sum(r => r.Median))).Append("</th><th></th><th>").Append(N(data.Proposal.Sum(r => r.Charged))).Append("</th><th>")
-            .Append(data.Proposal.Sum(r => r.Segments)).Append("</th></tr></tbody></table>\n<p>The total of medians is not the median of the total; see <code>campaign estimate</code> for the total's interval.</p>\n");
+            .Append(data.Proposal.Sum(r => r.Legs)).Append("</th></tr></tbody></table>\n<p>The total of medians is not the median of the total; see <code>campaign estimate</code> for the total's interval.</p>\n");
         b.Append("<script>window.addEventListener('load',function(){var ok=Array.from(document.images).every(function(i){return i.complete&&i.naturalWidth>0;});document.body.setAttribute('data-images',ok?'ok':'broken');});</script>\n");
         b.Append("</body></html>\n");
         return b.ToString();

@@ -39,7 +39,7 @@ public static class PlanStore
 {
     private const string EntryColumns =
         "config_id AS ConfigId, level AS Level, kind AS Kind, machine AS Machine, cores AS Cores, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, " +
-        "target_length AS TargetLength, length_m AS LengthM, median AS Median, mean AS Mean, low AS Low, high AS High, wall_hours AS WallHours, segments AS Segments, node_hours AS NodeHours, " +
+        "target_length AS TargetLength, length_m AS LengthM, median AS Median, mean AS Mean, low AS Low, high AS High, wall_hours AS WallHours, legs AS Legs, node_hours AS NodeHours, " +
         "charged AS Charged, charged_high AS ChargedHigh, cost AS Cost, checkpoint_gb AS CheckpointGb, output_gb AS OutputGb, source AS Source, extrapolation AS Extrapolation, log_se AS LogSe, dof AS Dof, runs AS Runs";
 
     /// <summary>Saves a new version in one transaction, with its event; returns its id.</summary>
@@ -71,10 +71,10 @@ public static class PlanStore
             connection.Execute(
                 """
                 INSERT INTO plan_entries (plan_id, config_id, level, kind, machine, cores, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0,
-                    target_length, length_m, median, mean, low, high, wall_hours, segments, node_hours, charged, charged_high, cost,
+                    target_length, length_m, median, mean, low, high, wall_hours, legs, node_hours, charged, charged_high, cost,
                     checkpoint_gb, output_gb, source, extrapolation, log_se, dof, runs)
                 VALUES (@Id, @ConfigId, @Level, @Kind, @Machine, @Cores, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0,
-                    @TargetLength, @LengthM, @Median, @Mean, @Low, @High, @WallHours, @Segments, @NodeHours, @Charged, @ChargedHigh, @Cost,
+                    @TargetLength, @LengthM, @Median, @Mean, @Low, @High, @WallHours, @Legs, @NodeHours, @Charged, @ChargedHigh, @Cost,
                     @CheckpointGb, @OutputGb, @Source, @Extrapolation, @LogSe, @Dof, @Runs)
                 """,
                 ConfigurationColumns.Parameters(e.Configuration, new
@@ -92,7 +92,7 @@ public static class PlanStore
                     r.Low,
                     r.High,
                     r.WallHours,
-                    r.Segments,
+                    r.Legs,
                     r.NodeHours,
                     Charged = r.ChargedCoreHours,
                     r.ChargedHigh,
@@ -212,7 +212,7 @@ public static class PlanStore
 
         public double WallHours { get; set; }
 
-        public long Segments { get; set; }
+        public long Legs { get; set; }
 
         public double NodeHours { get; set; }
 
@@ -250,7 +250,7 @@ public static class PlanStore
                 Low,
                 High,
                 WallHours,
-                (int)Segments,
+                (int)Legs,
                 NodeHours,
                 Charged,
                 ChargedHigh,

@@ -8,18 +8,26 @@ using Microsoft.Data.Sqlite;
 namespace Campaign.Store;
 
 /// <summary>
-/// Reads and writes tracked runs, segments and run events, mapping the typed domain (enums, times) to rows in one
+/// Reads and writes tracked runs, legs and run events, mapping the typed domain (enums, times) to rows in one
 /// place. Callers own the transactions.
 /// </summary>
 public static class TrackingStore
 {
-    private const string RunColumns = "run_id AS RunId, config_id AS ConfigId, level AS Level, machine AS Machine, cores AS Cores, folder AS Folder, target_length AS TargetLength, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, position AS Position, state AS State, reason AS Reason, failures_with_progress AS FailuresWithProgress, failures_without_progress AS FailuresWithoutProgress, stall_restarts AS StallRestarts, progress_t AS ProgressT, progress_at AS ProgressAt, norm AS Norm, checkpoint AS Checkpoint, created_at AS CreatedAt, updated_at AS UpdatedAt, finished_at AS FinishedAt, rehearsal AS Rehearsal, short_segments AS ShortSegments";
+    private const string RunColumns = "run_id AS RunId, config_id AS ConfigId, level AS Level, machine AS Machine, cores AS Cores, folder AS Folder, target_length AS TargetLength, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, position AS Position, state AS State, reason AS Reason, failures_with_progress AS FailuresWithProgress, failures_without_progress AS FailuresWithoutProgress, stall_restarts AS StallRestarts, progress_t AS ProgressT, progress_at AS ProgressAt, norm AS Norm, checkpoint AS Checkpoint, created_at AS CreatedAt, updated_at AS UpdatedAt, finished_at AS FinishedAt, rehearsal AS Rehearsal, short_legs AS ShortLegs";
 
-    private const string SegmentColumns = "id AS Id, run_id AS RunId, number AS Number, job_name AS JobName, job_id AS JobId, phase AS Phase, job_state AS JobState, native_state AS NativeState, exit_code AS ExitCode, signal AS Signal, elapsed_seconds AS ElapsedSeconds, charged_core_hours AS ChargedCoreHours, worst_case_core_hours AS WorstCaseCoreHours, wall_seconds AS WallSeconds, start_t AS StartT, restart_from AS RestartFrom, cancel_reason AS CancelReason, submitted_at AS SubmittedAt, started_at AS StartedAt, ended_at AS EndedAt";
+    private const string LegColumns = "id AS Id, run_id AS RunId, number AS Number, job_name AS JobName, job_id AS JobId, phase AS Phase, job_state AS JobState, native_state AS NativeState, exit_code AS ExitCode, signal AS Signal, elapsed_seconds AS ElapsedSeconds, charged_core_hours AS ChargedCoreHours, worst_case_core_hours AS WorstCaseCoreHours, wall_seconds AS WallSeconds, start_t AS StartT, restart_from AS RestartFrom, cancel_reason AS CancelReason, submitted_at AS SubmittedAt, started_at AS StartedAt, ended_at AS EndedAt";
 
     /// <summary>Every tracked run, in submission order.</summary>
     public static IReadOnlyList<TrackedRun> Runs(SqliteConnection connection, SqliteTransaction? transaction = null) =>
         connection.Query<RunRow>($"SELECT {RunColumns} FROM tracked_runs ORDER BY position, run_id", transaction: transaction).Select(r => r.ToRun()).ToList();
+
+    /// <summary>
+    /// The ids that runs tracked before schema version 9 had (keyed by today's id): their jobs of then carry the
+    /// former id in their names.
+    /// </summary>
+    public static IReadOnlyDictionary<string, string> FormerIds(SqliteConnection connection, SqliteTransaction? transaction = null) =>
+        connection.Query<(string RunId, string FormerId)>("SELECT run_id, former_id FROM tracked_runs WHERE former_id IS NOT NULL", transaction: transaction)
+            .ToDictionary(r => r.RunId, r => r.FormerId, StringComparer.Ordinal);
 
     /// <summary>One tracked run, or null.</summary>
     public static TrackedRun? Run(SqliteConnection connection, string runId, SqliteTransaction? transaction = null) =>
@@ -29,20 +37,20 @@ public static class TrackingStore
     public static IReadOnlyList<RunRecord> Records(SqliteConnection connection, SqliteTransaction? transaction = null) =>
         Runs(connection, transaction).Select(r => r.ToRecord()).ToList();
 
-    /// <summary>Every segment.</summary>
-    public static IReadOnlyList<JobSegment> Segments(SqliteConnection connection, SqliteTransaction? transaction = null) =>
-        connection.Query<SegmentRow>($"SELECT {SegmentColumns} FROM segments ORDER BY run_id, number", transaction: transaction).Select(s => s.ToSegment()).ToList();
+    /// <summary>Every leg.</summary>
+    public static IReadOnlyList<JobLeg> Legs(SqliteConnection connection, SqliteTransaction? transaction = null) =>
+        connection.Query<LegRow>($"SELECT {LegColumns} FROM legs ORDER BY run_id, number", transaction: transaction).Select(s => s.ToLeg()).ToList();
 
-    /// <summary>The segments of one run, in order.</summary>
-    public static IReadOnlyList<JobSegment> SegmentsOf(SqliteConnection connection, string runId, SqliteTransaction? transaction = null) =>
-        connection.Query<SegmentRow>($"SELECT {SegmentColumns} FROM segments WHERE run_id = @runId ORDER BY number", new { runId }, transaction).Select(s => s.ToSegment()).ToList();
+    /// <summary>The legs of one run, in order.</summary>
+    public static IReadOnlyList<JobLeg> LegsOf(SqliteConnection connection, string runId, SqliteTransaction? transaction = null) =>
+        connection.Query<LegRow>($"SELECT {LegColumns} FROM legs WHERE run_id = @runId ORDER BY number", new { runId }, transaction).Select(s => s.ToLeg()).ToList();
 
-    /// <summary>Every segment's charge (or commitment), with the machine of its run.</summary>
-    public static IReadOnlyList<SegmentCharge> Charges(SqliteConnection connection, SqliteTransaction? transaction = null) =>
+    /// <summary>Every leg's charge (or commitment), with the machine of its run.</summary>
+    public static IReadOnlyList<LegCharge> Charges(SqliteConnection connection, SqliteTransaction? transaction = null) =>
         connection.Query<(string RunId, string Machine, string Phase, double WorstCase, double? Charged, string SubmittedAt, string? StartedAt, string? EndedAt)>(
-            "SELECT s.run_id, r.machine, s.phase, s.worst_case_core_hours, s.charged_core_hours, s.submitted_at, s.started_at, s.ended_at FROM segments s JOIN tracked_runs r ON r.run_id = s.run_id",
+            "SELECT s.run_id, r.machine, s.phase, s.worst_case_core_hours, s.charged_core_hours, s.submitted_at, s.started_at, s.ended_at FROM legs s JOIN tracked_runs r ON r.run_id = s.run_id",
             transaction: transaction)
-        .Select(s => new SegmentCharge(s.RunId, s.Machine, PhaseOf(s.Phase), s.WorstCase, s.Charged, Time(s.SubmittedAt), OptionalTime(s.StartedAt), OptionalTime(s.EndedAt)))
+        .Select(s => new LegCharge(s.RunId, s.Machine, PhaseOf(s.Phase), s.WorstCase, s.Charged, Time(s.SubmittedAt), OptionalTime(s.StartedAt), OptionalTime(s.EndedAt)))
         .ToList();
 
     /// <summary>The run events, oldest first (of one run, or all).</summary>
@@ -88,7 +96,7 @@ public static class TrackingStore
             """
             UPDATE tracked_runs SET state = @State, reason = @Reason, failures_with_progress = @FailuresWithProgress,
                 failures_without_progress = @FailuresWithoutProgress, stall_restarts = @StallRestarts, progress_t = @Progress, progress_at = @ProgressAt,
-                norm = @Norm, checkpoint = @Checkpoint, updated_at = @UpdatedAt, finished_at = @FinishedAt, short_segments = @ShortSegments
+                norm = @Norm, checkpoint = @Checkpoint, updated_at = @UpdatedAt, finished_at = @FinishedAt, short_legs = @ShortLegs
             WHERE run_id = @RunId
             """,
             new
@@ -105,7 +113,7 @@ public static class TrackingStore
                 run.Checkpoint,
                 UpdatedAt = Text(run.UpdatedAt),
                 FinishedAt = OptionalText(run.FinishedAt),
-                run.ShortSegments,
+                run.ShortLegs,
             },
             transaction);
         if (transition is not null)
@@ -114,56 +122,56 @@ public static class TrackingStore
         }
     }
 
-    /// <summary>Inserts a segment (its id is set).</summary>
-    public static void Insert(SqliteConnection connection, SqliteTransaction transaction, JobSegment segment) =>
-        segment.Id = connection.ExecuteScalar<long>(
+    /// <summary>Inserts a leg (its id is set).</summary>
+    public static void Insert(SqliteConnection connection, SqliteTransaction transaction, JobLeg leg) =>
+        leg.Id = connection.ExecuteScalar<long>(
             """
-            INSERT INTO segments (run_id, number, job_name, job_id, phase, worst_case_core_hours, wall_seconds, start_t, restart_from, submitted_at)
+            INSERT INTO legs (run_id, number, job_name, job_id, phase, worst_case_core_hours, wall_seconds, start_t, restart_from, submitted_at)
             VALUES (@RunId, @Number, @JobName, @JobId, @Phase, @WorstCase, @WallSeconds, @StartT, @RestartFrom, @SubmittedAt) RETURNING id
             """,
             new
             {
-                segment.RunId,
-                segment.Number,
-                segment.JobName,
-                segment.JobId,
-                Phase = NameOf(segment.Phase),
-                segment.WorstCase,
-                WallSeconds = segment.Wall.TotalSeconds,
-                segment.StartT,
-                segment.RestartFrom,
-                SubmittedAt = Text(segment.SubmittedAt),
+                leg.RunId,
+                leg.Number,
+                leg.JobName,
+                leg.JobId,
+                Phase = NameOf(leg.Phase),
+                leg.WorstCase,
+                WallSeconds = leg.Wall.TotalSeconds,
+                leg.StartT,
+                leg.RestartFrom,
+                SubmittedAt = Text(leg.SubmittedAt),
             },
             transaction);
 
-    /// <summary>Saves every changing field of a segment.</summary>
-    public static void Save(SqliteConnection connection, SqliteTransaction transaction, JobSegment segment) =>
+    /// <summary>Saves every changing field of a leg.</summary>
+    public static void Save(SqliteConnection connection, SqliteTransaction transaction, JobLeg leg) =>
         connection.Execute(
             """
-            UPDATE segments SET job_id = @JobId, phase = @Phase, job_state = @JobState, native_state = @NativeState, exit_code = @ExitCode, signal = @Signal,
+            UPDATE legs SET job_id = @JobId, phase = @Phase, job_state = @JobState, native_state = @NativeState, exit_code = @ExitCode, signal = @Signal,
                 elapsed_seconds = @ElapsedSeconds, charged_core_hours = @Charged, cancel_reason = @CancelReason, started_at = @StartedAt, ended_at = @EndedAt
             WHERE id = @Id
             """,
             new
             {
-                segment.Id,
-                segment.JobId,
-                Phase = NameOf(segment.Phase),
-                segment.JobState,
-                segment.NativeState,
-                segment.ExitCode,
-                segment.Signal,
-                ElapsedSeconds = segment.Elapsed?.TotalSeconds,
-                segment.Charged,
-                segment.CancelReason,
-                StartedAt = OptionalText(segment.StartedAt),
-                EndedAt = OptionalText(segment.EndedAt),
+                leg.Id,
+                leg.JobId,
+                Phase = NameOf(leg.Phase),
+                leg.JobState,
+                leg.NativeState,
+                leg.ExitCode,
+                leg.Signal,
+                ElapsedSeconds = leg.Elapsed?.TotalSeconds,
+                leg.Charged,
+                leg.CancelReason,
+                StartedAt = OptionalText(leg.StartedAt),
+                EndedAt = OptionalText(leg.EndedAt),
             },
             transaction);
 
-    /// <summary>Removes a segment that was only an intent (the batch system never received it).</summary>
-    public static void DeleteIntent(SqliteConnection connection, SqliteTransaction transaction, long segmentId) =>
-        connection.Execute("DELETE FROM segments WHERE id = @segmentId AND phase = 'intent'", new { segmentId }, transaction);
+    /// <summary>Removes a leg that was only an intent (the batch system never received it).</summary>
+    public static void DeleteIntent(SqliteConnection connection, SqliteTransaction transaction, long legId) =>
+        connection.Execute("DELETE FROM legs WHERE id = @legId AND phase = 'intent'", new { legId }, transaction);
 
     /// <summary>Writes a run's transition (or note) into the event log.</summary>
     public static void Event(SqliteConnection connection, SqliteTransaction transaction, RunTransition transition) =>
@@ -187,21 +195,21 @@ public static class TrackingStore
         return true;
     }
 
-    /// <summary>The stored name of a segment phase.</summary>
-    public static string NameOf(SegmentPhase phase) => phase switch
+    /// <summary>The stored name of a leg phase.</summary>
+    public static string NameOf(LegPhase phase) => phase switch
     {
-        SegmentPhase.Intent => "intent",
-        SegmentPhase.Submitted => "submitted",
+        LegPhase.Intent => "intent",
+        LegPhase.Submitted => "submitted",
         _ => "ended",
     };
 
-    /// <summary>Parses a stored segment phase.</summary>
-    public static SegmentPhase PhaseOf(string name) => name switch
+    /// <summary>Parses a stored leg phase.</summary>
+    public static LegPhase PhaseOf(string name) => name switch
     {
-        "intent" => SegmentPhase.Intent,
-        "submitted" => SegmentPhase.Submitted,
-        "ended" => SegmentPhase.Ended,
-        _ => throw new InvalidDataException($"segments.phase = {name}: expected intent, submitted or ended"),
+        "intent" => LegPhase.Intent,
+        "submitted" => LegPhase.Submitted,
+        "ended" => LegPhase.Ended,
+        _ => throw new InvalidDataException($"legs.phase = {name}: expected intent, submitted or ended"),
     };
 
     private static string Text(DateTimeOffset at) => at.ToString("O", CultureInfo.InvariantCulture);
@@ -256,15 +264,15 @@ public static class TrackingStore
 
         public bool Rehearsal { get; set; }
 
-        public long ShortSegments { get; set; }
+        public long ShortLegs { get; set; }
 
         public TrackedRun ToRun() => TrackedRun.Restore(
             RunId, ConfigId, (int)Level, Machine, (int)Cores, Folder, TargetLength, Configuration, Position, Rehearsal, Time(CreatedAt),
-            RunStates.Parse(State), Reason, (int)FailuresWithProgress, (int)FailuresWithoutProgress, (int)StallRestarts, (int)ShortSegments, ProgressT, OptionalTime(ProgressAt), Norm, Checkpoint,
+            RunStates.Parse(State), Reason, (int)FailuresWithProgress, (int)FailuresWithoutProgress, (int)StallRestarts, (int)ShortLegs, ProgressT, OptionalTime(ProgressAt), Norm, Checkpoint,
             Time(UpdatedAt), OptionalTime(FinishedAt));
     }
 
-    private sealed class SegmentRow
+    private sealed class LegRow
     {
         public long Id { get; set; }
 
@@ -306,7 +314,7 @@ public static class TrackingStore
 
         public string? EndedAt { get; set; }
 
-        public JobSegment ToSegment() => JobSegment.Restore(
+        public JobLeg ToLeg() => JobLeg.Restore(
             Id, RunId, (int)Number, JobName, JobId, PhaseOf(Phase), JobState, NativeState, (int?)ExitCode, (int?)Signal, ElapsedSeconds is { } e ? TimeSpan.FromSeconds(e) : null,
             ChargedCoreHours, WorstCaseCoreHours, TimeSpan.FromSeconds(WallSeconds), StartT, RestartFrom, CancelReason, Time(SubmittedAt), OptionalTime(StartedAt), OptionalTime(EndedAt));
     }

@@ -12,7 +12,7 @@ public sealed record BackupResult(string Destination, IReadOnlyList<string> File
 
 /// <summary>
 /// A consistent copy of a workspace's own state: the database through SQLite's online backup (safe while the
-/// daemon writes: it copies one consistent snapshot), the config, the machine profiles and the segment script.
+/// daemon writes: it copies one consistent snapshot), the config, the machine profiles and the leg script.
 /// Run folders (checkpoints, simulation output) are not copied: they belong on storage the site backs up.
 /// </summary>
 public static class WorkspaceBackup
@@ -63,7 +63,7 @@ public static class WorkspaceBackup
             Copy(Path.Combine(Workspace.MachinesFolderName, Path.GetFileName(profile)));
         }
 
-        Copy("run-segment.sh");
+        Copy("run-leg.sh");
         var database = Path.Combine(destination, Workspace.DatabaseFileName);
         using (var target = new SqliteConnection(new SqliteConnectionStringBuilder { DataSource = database, Pooling = false }.ToString()))
         {

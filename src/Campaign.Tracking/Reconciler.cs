@@ -8,7 +8,7 @@ namespace Campaign.Tracking;
 /// <summary>
 /// One reconcile cycle over every tracked run, as small steps in order: once after a restore, find the jobs
 /// submitted after the backup by name; recover intents (submissions a crash left
-/// unconfirmed, looked up by job name), observe (one query per machine), end and charge segments (finish, continue
+/// unconfirmed, looked up by job name), observe (one query per machine), end and charge legs (finish, continue
 /// from the newest valid checkpoint, hold), watch health (stalls, a growing constraint norm), submit within the
 /// budget rule; then record which machines were at fault and notify. Every state change is one SQLite transaction
 /// with its event row. A machine whose batch system fails is skipped for the rest of the cycle and its runs stay as
@@ -38,7 +38,7 @@ public sealed class Reconciler
         await RecoverIntents.RunAsync(c, cancellationToken).ConfigureAwait(false);
         await ObserveJobs.RunAsync(c, cancellationToken).ConfigureAwait(false);
         await WatchHealth.RunAsync(c, cancellationToken).ConfigureAwait(false);
-        await SubmitSegments.RunAsync(c, cancellationToken).ConfigureAwait(false);
+        await SubmitLegs.RunAsync(c, cancellationToken).ConfigureAwait(false);
         Machines.Record(c);
 
         var failures = await new Notifier(c.Settings.NotifyCommand, _workspace.Root).SendAsync(c.Notices, cancellationToken).ConfigureAwait(false);

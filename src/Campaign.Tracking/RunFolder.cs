@@ -18,7 +18,7 @@ public sealed class RunFolder
 
     public bool IsDone => File.Exists(System.IO.Path.Combine(Path, _settings.DoneMarker));
 
-    /// <summary>Progress reports from the progress file, or from the segment logs when a regex is configured.</summary>
+    /// <summary>Progress reports from the progress file, or from the leg logs when a regex is configured.</summary>
     public IReadOnlyList<ProgressPoint> Progress()
     {
         if (_settings.ProgressRegex.Length > 0)

@@ -48,8 +48,8 @@ public sealed class CycleStepTests : IDisposable
     {
         using var workspace = Workspace.Open(Ws, _clock);
         var runs = TrackingStore.Runs(workspace.Connection).Take(2).ToList();
-        var reached = new JobSegment(runs[0].RunId, 1, JobName.For(workspace.Id, runs[0].RunId, 1), 10, TimeSpan.FromHours(1), 0, null, _clock.GetUtcNow());
-        var lost = new JobSegment(runs[1].RunId, 1, JobName.For(workspace.Id, runs[1].RunId, 1), 10, TimeSpan.FromHours(1), 0, null, _clock.GetUtcNow());
+        var reached = new JobLeg(runs[0].RunId, 1, JobName.For(workspace.Id, runs[0].RunId, 1), 10, TimeSpan.FromHours(1), 0, null, _clock.GetUtcNow());
+        var lost = new JobLeg(runs[1].RunId, 1, JobName.For(workspace.Id, runs[1].RunId, 1), 10, TimeSpan.FromHours(1), 0, null, _clock.GetUtcNow());
         using (var tx = workspace.Connection.BeginTransaction())
         {
             TrackingStore.Insert(workspace.Connection, tx, reached);
@@ -64,9 +64,9 @@ public sealed class CycleStepTests : IDisposable
         var c = Context(workspace);
         await RecoverIntents.RunAsync(c, CancellationToken.None);
 
-        var segments = TrackingStore.Segments(workspace.Connection);
-        var found = Assert.Single(segments);
-        Assert.Equal((runs[0].RunId, id, SegmentPhase.Submitted), (found.RunId, found.JobId, found.Phase));
+        var legs = TrackingStore.Legs(workspace.Connection);
+        var found = Assert.Single(legs);
+        Assert.Equal((runs[0].RunId, id, LegPhase.Submitted), (found.RunId, found.JobId, found.Phase));
         Assert.Equal(RunState.Queued, TrackingStore.Run(workspace.Connection, runs[0].RunId)!.State);
         Assert.Equal(RunState.Planned, TrackingStore.Run(workspace.Connection, runs[1].RunId)!.State);
         Assert.Contains(TrackingStore.Events(workspace.Connection, runs[1].RunId), e => e.Why.Contains("never reached the batch system", StringComparison.Ordinal));
@@ -81,7 +81,7 @@ public sealed class CycleStepTests : IDisposable
         _machines[Cluster].Refused.Add(JobName.For(workspace.Id, runs[1].RunId, 1));
 
         var c = Context(workspace);
-        await SubmitSegments.RunAsync(c, CancellationToken.None);
+        await SubmitLegs.RunAsync(c, CancellationToken.None);
         var after = TrackingStore.Runs(workspace.Connection).ToDictionary(r => r.RunId);
         Assert.Equal(RunState.Held, after[runs[1].RunId].State);
         Assert.Equal("submission rejected: sbatch: error: Batch job submission failed: Invalid account or account/partition combination specified", after[runs[1].RunId].Reason);
@@ -98,7 +98,7 @@ public sealed class CycleStepTests : IDisposable
         }
 
         var broken = Context(workspace);
-        await SubmitSegments.RunAsync(broken, CancellationToken.None);
+        await SubmitLegs.RunAsync(broken, CancellationToken.None);
         Machines.Record(broken);
         Assert.Equal(RunState.Planned, TrackingStore.Run(workspace.Connection, runs[1].RunId)!.State);
         Assert.Equal(Cluster, Assert.Single(broken.Faults).Key);
@@ -106,14 +106,14 @@ public sealed class CycleStepTests : IDisposable
         Assert.Equal(1, _machines[Cluster].RefusedCalls); // skipped for the rest of the cycle after the first failure
         var fault = Assert.Single(MachineFaultStore.All(workspace.Connection));
         Assert.DoesNotContain('\n', fault.Message);
-        Assert.Equal(runs.Count - 1, TrackingStore.Segments(workspace.Connection).Count);
+        Assert.Equal(runs.Count - 1, TrackingStore.Legs(workspace.Connection).Count);
     }
 
     [Fact]
     public void A_run_given_up_while_its_submission_was_unconfirmed_stays_given_up_and_its_job_is_cancelled()
     {
         // Regression (faults issue, item 5): the events showed queued -> failed (abandoned), then failed -> planned
-        // (segment 1 never reached ...), then a new job.
+        // (leg 1 never reached ...), then a new job.
         var runs = new RunService(_clock, BatchAccess.Given(m => _machines[m]));
         string runId;
         using (var workspace = Workspace.Open(Ws, _clock))
@@ -125,7 +125,7 @@ public sealed class CycleStepTests : IDisposable
         runs.Cycle(Ws);
         using (var workspace = Workspace.Open(Ws, _clock))
         {
-            Assert.Contains(TrackingStore.SegmentsOf(workspace.Connection, runId), s => s.Phase == SegmentPhase.Intent);
+            Assert.Contains(TrackingStore.LegsOf(workspace.Connection, runId), s => s.Phase == LegPhase.Intent);
         }
 
         runs.Abandon(new RunSelection(Ws, new[] { runId }, null, null));
@@ -138,8 +138,8 @@ public sealed class CycleStepTests : IDisposable
 
         using var db = Workspace.Open(Ws, _clock);
         Assert.Equal(RunState.Failed, TrackingStore.Run(db.Connection, runId)!.State);
-        var segments = TrackingStore.SegmentsOf(db.Connection, runId);
-        var only = Assert.Single(segments); // no second job for the given-up run
+        var legs = TrackingStore.LegsOf(db.Connection, runId);
+        var only = Assert.Single(legs); // no second job for the given-up run
         Assert.Equal("abandoned", only.CancelReason);
         Assert.Contains(only.JobId!, _machines[Cluster].Cancelled);
         Assert.DoesNotContain(TrackingStore.Events(db.Connection, runId), e => e.FromState == "failed" && e.ToState != "failed");
@@ -161,11 +161,11 @@ public sealed class CycleStepTests : IDisposable
         Assert.Equal(3, report.Submitted);
         Assert.DoesNotContain(report.Messages, m => m.Contains("not submitted", StringComparison.Ordinal));
         using var db = Workspace.Open(ws, _clock);
-        Assert.Equal(3, TrackingStore.Segments(db.Connection).Select(s => s.JobName).Distinct().Count());
+        Assert.Equal(3, TrackingStore.Legs(db.Connection).Select(s => s.JobName).Distinct().Count());
     }
 
     [Fact]
-    public void A_run_with_a_pre_queued_segment_stays_running_and_its_stall_is_still_caught()
+    public void A_run_with_a_pre_queued_leg_stays_running_and_its_stall_is_still_caught()
     {
         // Regression (faults issue, item 9): with prequeue each cycle flipped the run queued -> running -> queued
         // (two events and two notices a cycle) and the health checks, which look at running runs, never ran.
@@ -175,7 +175,7 @@ public sealed class CycleStepTests : IDisposable
         var machines = new Dictionary<string, SimulatedMachine>(StringComparer.Ordinal);
         foreach (var profile in Workspaces.WorkspaceAdmin.Settings(ws).Machines.Values)
         {
-            machines[profile.Name] = new SimulatedMachine(_clock, profile, _ => 1000, TimeSpan.FromHours(1)); // 1000 h: many 48 h segments
+            machines[profile.Name] = new SimulatedMachine(_clock, profile, _ => 1000, TimeSpan.FromHours(1)); // 1000 h: many 48 h legs
         }
 
         var runs = new RunService(_clock, BatchAccess.Given(m => machines[m]));
@@ -187,15 +187,15 @@ public sealed class CycleStepTests : IDisposable
 
         using (var db = Workspace.Open(ws, _clock))
         {
-            var events = TrackingStore.Events(db.Connection, "sm-a.L1");
-            Assert.Equal(0, events.Count(e => e.FromState == "running" && e.ToState == "queued")); // no segment ended yet
-            Assert.Equal(2, TrackingStore.SegmentsOf(db.Connection, "sm-a.L1").Count); // the running one and the pre-queued one
-            Assert.Equal(RunState.Running, TrackingStore.Run(db.Connection, "sm-a.L1")!.State);
+            var events = TrackingStore.Events(db.Connection, "sm-a.res1");
+            Assert.Equal(0, events.Count(e => e.FromState == "running" && e.ToState == "queued")); // no leg ended yet
+            Assert.Equal(2, TrackingStore.LegsOf(db.Connection, "sm-a.res1").Count); // the running one and the pre-queued one
+            Assert.Equal(RunState.Running, TrackingStore.Run(db.Connection, "sm-a.res1")!.State);
         }
 
         // The code stops advancing: with stall_minutes = 2880 (48 h) the stall rule must still see it.
         File.WriteAllText(Path.Combine(ws, "campaign.toml"), File.ReadAllText(Path.Combine(ws, "campaign.toml")).Replace("stall_minutes = 2880", "stall_minutes = 600", StringComparison.Ordinal));
-        machines["halyard"].Stalled.Add("sm-a.L1");
+        machines["halyard"].Stalled.Add("sm-a.res1");
         for (var i = 0; i < 8; i++)
         {
             _clock.Advance(TimeSpan.FromHours(4));
@@ -203,7 +203,7 @@ public sealed class CycleStepTests : IDisposable
         }
 
         using var after = Workspace.Open(ws, _clock);
-        Assert.Contains(TrackingStore.Events(after.Connection, "sm-a.L1"), e => e.Why.Contains("no progress for", StringComparison.Ordinal));
+        Assert.Contains(TrackingStore.Events(after.Connection, "sm-a.res1"), e => e.Why.Contains("no progress for", StringComparison.Ordinal));
     }
 
     [Fact]
@@ -237,8 +237,8 @@ public sealed class CycleStepTests : IDisposable
             var run = TrackingStore.Run(db.Connection, id)!;
             Assert.Equal(RunState.Failed, run.State);
             Assert.Equal("withdrawn from the campaign by plan 2", run.Reason);
-            var segment = Assert.Single(TrackingStore.SegmentsOf(db.Connection, id));
-            Assert.Contains(segment.JobId!, _machines[Cluster].Cancelled);
+            var leg = Assert.Single(TrackingStore.LegsOf(db.Connection, id));
+            Assert.Contains(leg.JobId!, _machines[Cluster].Cancelled);
         }
     }
 }

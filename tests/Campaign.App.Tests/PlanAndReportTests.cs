@@ -39,19 +39,19 @@ public sealed class PlanAndReportTests : IDisposable
         // the configurations the plan put on that same machine (most of them).
         var machineOf = plan.Entries.GroupBy(e => e.ConfigId).ToDictionary(g => g.Key, g => g.First().Machine);
         var expected = estimate.Estimate.Runs.Where(r => machineOf.TryGetValue(r.Id, out var m) && m == r.Machine)
-            .Select(r => (Id: r.Id + (r.Kind == "ecc" ? " (trials)" : ""), r.Level, r.Machine, r.Median, r.Low, r.High, r.ChargedCoreHours, r.Segments))
+            .Select(r => (Id: r.Id + (r.Kind == "ecc" ? " (trials)" : ""), r.Level, r.Machine, r.Median, r.Low, r.High, r.ChargedCoreHours, r.Legs))
             .OrderBy(r => r.Id, StringComparer.Ordinal).ThenBy(r => r.Level).ToList();
 
         var data = new ReportService(_clock).Gather(new ReportRequest(Ws, Path.Combine(_folder.Path, "report"), null, null, 50));
         Assert.Equal(plan.Entries.Count, data.Proposal.Count);
         var compared = expected.Select(e => e.Id).ToHashSet(StringComparer.Ordinal);
-        var table = data.Proposal.Where(r => compared.Contains(r.Id)).Select(r => (r.Id, r.Level, r.Machine, r.Median, r.Low, r.High, r.Charged, r.Segments))
+        var table = data.Proposal.Where(r => compared.Contains(r.Id)).Select(r => (r.Id, r.Level, r.Machine, r.Median, r.Low, r.High, r.Charged, r.Legs))
             .OrderBy(r => r.Id, StringComparer.Ordinal).ThenBy(r => r.Level).ToList();
         Assert.True(compared.Count * 2 >= data.Proposal.Select(r => r.Id).Distinct().Count(), $"only {compared.Count} configurations to compare");
         Assert.Equal(expected.Count, table.Count);
         for (var i = 0; i < expected.Count; i++)
         {
-            Assert.Equal((expected[i].Id, expected[i].Level, expected[i].Machine, expected[i].Segments), (table[i].Id, table[i].Level, table[i].Machine, table[i].Segments));
+            Assert.Equal((expected[i].Id, expected[i].Level, expected[i].Machine, expected[i].Legs), (table[i].Id, table[i].Level, table[i].Machine, table[i].Legs));
             Assert.Equal(expected[i].Median, table[i].Median, 9);
             Assert.Equal(expected[i].Low, table[i].Low, 9);
             Assert.Equal(expected[i].High, table[i].High, 9);
@@ -85,23 +85,23 @@ public sealed class PlanAndReportTests : IDisposable
         new PlanService(_clock).Select(new SelectRequest(Ws, Path.Combine(Ws, "candidates.csv"), "candidates.csv", SelectionObjective.Coverage, null, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
         var config = new PlanService(_clock).Current(Ws)!.ConfigIds[0];
         var file = Path.Combine(Ws, "older.csv");
-        File.WriteAllText(file, "run_id,q,chi1x,chi1y,chi1z,chi2x,chi2y,chi2z,omega0,level,cores,cluster,wall_hours,outcome,core_hours,t_end,segments,checkpoint_gb,output_gb,started,finished,notes\n"
-            + $"{config}.L1,7,0,0,0,0,0,0,0.0162,1,96,gunwale,1597,completed,122661,8165,68,5.77,12.6,2025-01-09T22:00:00Z,2025-05-08T13:22:30Z,an older run of ours\n");
+        File.WriteAllText(file, "run_id,q,chi1x,chi1y,chi1z,chi2x,chi2y,chi2z,omega0,level,cores,cluster,wall_hours,outcome,core_hours,t_end,legs,checkpoint_gb,output_gb,started,finished,notes\n"
+            + $"{config}.res1,7,0,0,0,0,0,0,0.0162,1,96,gunwale,1597,completed,122661,8165,68,5.77,12.6,2025-01-09T22:00:00Z,2025-05-08T13:22:30Z,an older run of ours\n");
         new RunLogService(_clock).Import(new ImportLogsRequest(Ws, file, "older.csv", false));
 
         var error = Assert.Throws<InvalidInputException>(() => new TrackService(_clock).Track(new TrackRequest(Ws, null, null, new[] { config }, false)));
-        Assert.StartsWith($"{config}.L1: a run log imported from older.csv has this id: expected run ids that are new", Assert.Single(error.Problems), StringComparison.Ordinal);
+        Assert.StartsWith($"{config}.res1: a run log imported from older.csv has this id: expected run ids that are new", Assert.Single(error.Problems), StringComparison.Ordinal);
         Assert.Empty(new StatusService(_clock).Status(Ws, 0).Runs);
 
         using var db = Store.Workspace.Open(Ws, _clock);
-        var log = Store.RunLogStore.All(db.Connection).Single(l => l.RunId == config + ".L1");
+        var log = Store.RunLogStore.All(db.Connection).Single(l => l.RunId == config + ".res1");
         using (var tx = db.Connection.BeginTransaction())
         {
             Assert.False(Store.TrackingStore.LogFinishedRun(db.Connection, tx, log with { Machine = "halyard", WallHours = 1 }, _clock.GetUtcNow()));
             tx.Commit();
         }
 
-        var kept = Store.RunLogStore.All(db.Connection).Single(l => l.RunId == config + ".L1");
+        var kept = Store.RunLogStore.All(db.Connection).Single(l => l.RunId == config + ".res1");
         Assert.Equal((7.0, "gunwale", 1597.0), (kept.Configuration.Q.Value, kept.Machine, kept.WallHours));
     }
 

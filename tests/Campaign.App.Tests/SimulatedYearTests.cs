@@ -73,7 +73,7 @@ public sealed class SimulatedYearTests : IDisposable
         Cycles(10);
         Assert.All(Records().Where(r => r.Rehearsal), r => Assert.Equal(RunState.Finished, r.State));
         Assert.All(Standing().Runs.Where(s => rehearsed.Contains(s.Entry.ConfigId)), s => Assert.Equal(PlanRunStatus.ToCome, s.Status));
-        Assert.Equal(0, Scalar("SELECT count(*) FROM run_logs WHERE run_id LIKE '%.r%'"));
+        Assert.Equal(0, Scalar("SELECT count(*) FROM run_logs WHERE run_id GLOB '*.r[0-9]*'"));
 
         // A plain track after the rehearsal adds the real runs of the rehearsed configurations.
         var afterRehearsal = new TrackService(_clock).Track(new TrackRequest(Ws, null, null, rehearsed, Rehearsal: false));
@@ -82,12 +82,12 @@ public sealed class SimulatedYearTests : IDisposable
 
         // 3. A few days of running.
         Cycles(4);
-        Assert.True(Scalar("SELECT count(*) FROM segments WHERE phase = 'ended'") > 0);
+        Assert.True(Scalar("SELECT count(*) FROM legs WHERE phase = 'ended'") > 0);
 
         // 4. The cluster's batch commands break for a week: its runs stay exactly as they were, the machine is marked.
         var cluster = plan.Runs.First().Machine;
         var before = Records().Where(r => r.Machine == cluster && !r.Rehearsal).ToDictionary(r => r.RunId, r => (r.State, r.Reason));
-        var segmentsBefore = Scalar("SELECT count(*) FROM segments");
+        var legsBefore = Scalar("SELECT count(*) FROM legs");
         Assert.Contains(before.Values, r => r.State is RunState.Queued or RunState.Running);
         _machines[cluster].Down = true;
         for (var i = 0; i < 14; i++)
@@ -98,7 +98,7 @@ public sealed class SimulatedYearTests : IDisposable
             Assert.Equal(before, Records().Where(r => r.Machine == cluster && !r.Rehearsal).ToDictionary(r => r.RunId, r => (r.State, r.Reason)));
         }
 
-        Assert.Equal(segmentsBefore, Scalar("SELECT count(*) FROM segments"));
+        Assert.Equal(legsBefore, Scalar("SELECT count(*) FROM legs"));
         var status = new StatusService(_clock).Status(Ws, 0);
         var fault = Assert.Single(status.MachineFaults);
         Assert.Equal(cluster, fault.Machine);
@@ -110,7 +110,7 @@ public sealed class SimulatedYearTests : IDisposable
 
         // 5. A human gives one configuration up while it runs; its jobs are cancelled and charged once.
         var givenUp = Records().First(r => !r.Rehearsal && r.State is RunState.Queued or RunState.Running).ConfigId;
-        var abandoned = _runs.Abandon(new RunSelection(Ws, Array.Empty<string>(), givenUp + ".L*", null));
+        var abandoned = _runs.Abandon(new RunSelection(Ws, Array.Empty<string>(), givenUp + ".res*", null));
         Assert.NotEmpty(abandoned);
         Cycles(60);
 
@@ -123,7 +123,7 @@ public sealed class SimulatedYearTests : IDisposable
         // 7. A re-plan with a smaller budget keeps every started configuration and takes spending off first.
         var standing = Standing();
         var startedNow = standing.Runs.Where(s => s.IsStarted && s.Status != PlanRunStatus.Abandoned).Select(s => s.Entry.ConfigId).ToHashSet(StringComparer.Ordinal);
-        var spent = Sum("SELECT sum(charged_core_hours) FROM segments");
+        var spent = Sum("SELECT sum(charged_core_hours) FROM legs");
         var second = Select(budget: spent + 2_500_000);
         Assert.Equal(startedNow.Order(StringComparer.Ordinal), second.Carried.Select(c => c.ConfigId).Order(StringComparer.Ordinal));
         // The configuration given up needs nothing more (levels it finished before keep it in the plan as history).
@@ -146,7 +146,7 @@ public sealed class SimulatedYearTests : IDisposable
         }
 
         var end = Standing();
-        _output.WriteLine($"{_cycles} cycles; {end.Runs.Count(s => s.Status == PlanRunStatus.Finished)} plan runs finished, {PlanRunsLeft()} left; spent {Sum("SELECT sum(charged_core_hours) FROM segments"):N0} core-hours");
+        _output.WriteLine($"{_cycles} cycles; {end.Runs.Count(s => s.Status == PlanRunStatus.Finished)} plan runs finished, {PlanRunsLeft()} left; spent {Sum("SELECT sum(charged_core_hours) FROM legs"):N0} core-hours");
         Assert.True(end.Runs.Count(s => s.Status == PlanRunStatus.Finished) >= startedNow.Count);
         var final = new ForecastService(_clock).Forecast(new ForecastRequest(Ws, 20, 1));
         Assert.Equal(PlanRunsLeft(), final.RunsLeft);
@@ -164,7 +164,7 @@ public sealed class SimulatedYearTests : IDisposable
     }
 
     /// <summary>How long a run takes at its cores: its estimated wall hours (a rehearsal: 3 hours).</summary>
-    private double HoursToFinish(string runId) => runId.Contains(".r", StringComparison.Ordinal) ? 3 : _wallHours[runId];
+    private double HoursToFinish(string runId) => System.Text.RegularExpressions.Regex.IsMatch(runId, @"\.r[0-9]+\z") ? 3 : _wallHours[runId];
 
     private void Cycles(int count)
     {
@@ -206,10 +206,10 @@ public sealed class SimulatedYearTests : IDisposable
         Assert.All(standing.Runs.Where(s => s.Run is not null), s => Assert.False(s.Run!.Rehearsal));
 
         // Spending is never counted twice: what the tracker charged is what the machines ran, job by job.
-        var charged = db.ExecuteScalar<double?>("SELECT sum(charged_core_hours) FROM segments") ?? 0;
+        var charged = db.ExecuteScalar<double?>("SELECT sum(charged_core_hours) FROM legs") ?? 0;
         var ran = _machines.Values.Sum(m => m.ChargedByTheSite);
         Assert.True(Math.Abs(charged - ran) <= 1e-6 * Math.Max(1, ran), $"cycle {_cycles}: charged {charged} but the machines ran {ran}");
-        Assert.Equal(db.ExecuteScalar<long>("SELECT count(*) FROM segments WHERE job_id IS NOT NULL"), db.ExecuteScalar<long>("SELECT count(DISTINCT job_id) FROM segments WHERE job_id IS NOT NULL"));
+        Assert.Equal(db.ExecuteScalar<long>("SELECT count(*) FROM legs WHERE job_id IS NOT NULL"), db.ExecuteScalar<long>("SELECT count(DISTINCT job_id) FROM legs WHERE job_id IS NOT NULL"));
         var names = _machines.Values.SelectMany(m => m.SubmittedNames).ToList();
         Assert.Equal(names.Count, names.Distinct().Count());
 

@@ -41,13 +41,13 @@ public sealed class WorkspaceFaultTests : IDisposable
     [Fact]
     public void A_lost_submission_answer_never_adopts_or_cancels_another_workspaces_job()
     {
-        // Regression (faults issue, item 1): both workspaces track c1.L1 on one machine; B's submission times out,
+        // Regression (faults issue, item 1): both workspaces track c1.res1 on one machine; B's submission times out,
         // and B's next cycle found A's job by its name, adopted it, and 'abandon' in B cancelled it.
         Runs.Cycle(A);
         string aJob;
         using (var a = Workspace.Open(A, _clock))
         {
-            aJob = TrackingStore.SegmentsOf(a.Connection, "c1.L1").Single().JobId!;
+            aJob = TrackingStore.LegsOf(a.Connection, "c1.res1").Single().JobId!;
         }
 
         _machines["halyard"].TimeOutSubmissions = true;
@@ -58,12 +58,12 @@ public sealed class WorkspaceFaultTests : IDisposable
 
         using (var b = Workspace.Open(B, _clock))
         {
-            var segments = TrackingStore.SegmentsOf(b.Connection, "c1.L1");
-            Assert.DoesNotContain(segments, s => s.JobId == aJob);
-            Assert.Contains(TrackingStore.Events(b.Connection, "c1.L1"), e => e.Why.Contains("never reached the batch system", StringComparison.Ordinal));
+            var legs = TrackingStore.LegsOf(b.Connection, "c1.res1");
+            Assert.DoesNotContain(legs, s => s.JobId == aJob);
+            Assert.Contains(TrackingStore.Events(b.Connection, "c1.res1"), e => e.Why.Contains("never reached the batch system", StringComparison.Ordinal));
         }
 
-        Runs.Abandon(new RunSelection(B, new[] { "c1.L1" }, null, null));
+        Runs.Abandon(new RunSelection(B, new[] { "c1.res1" }, null, null));
         Assert.DoesNotContain(aJob, _machines["halyard"].Cancelled);
     }
 
@@ -125,11 +125,11 @@ public sealed class WorkspaceFaultTests : IDisposable
     {
         // Regression (faults issue, item 4): restoring a backup and ticking queued a second job of the same name,
         // both writing into the same run folder.
-        Runs.Cycle(A); // segment 1 of c1.L1 submitted
+        Runs.Cycle(A); // leg 1 of c1.res1 submitted
         var backup = new WorkspaceAdmin(_clock).Backup(A, Path.Combine(_folder.Path, "backup"));
         Assert.Equal("ok", backup.Integrity);
 
-        _clock.Advance(TimeSpan.FromHours(49)); // segment 1 runs into its 48 h limit; segment 2 is submitted
+        _clock.Advance(TimeSpan.FromHours(49)); // leg 1 runs into its 48 h limit; leg 2 is submitted
         Runs.Cycle(A);
         _clock.Advance(TimeSpan.FromHours(2));
         Runs.Cycle(A);
@@ -149,21 +149,21 @@ public sealed class WorkspaceFaultTests : IDisposable
         Assert.Equal(2, names.Count);
         Assert.Contains(report.Messages, m => m.StartsWith("after a restore: 1 jobs submitted after the backup were found by name", StringComparison.Ordinal));
         using var db = Workspace.Open(A, _clock);
-        var segments = TrackingStore.SegmentsOf(db.Connection, "c1.L1");
-        Assert.Equal(new[] { 1, 2 }, segments.Select(s => s.Number));
-        Assert.Equal(SegmentPhase.Ended, segments[0].Phase);
+        var legs = TrackingStore.LegsOf(db.Connection, "c1.res1");
+        Assert.Equal(new[] { 1, 2 }, legs.Select(s => s.Number));
+        Assert.Equal(LegPhase.Ended, legs[0].Phase);
         Assert.False(WorkspaceBackup.NeedsJobLookup(db.Connection));
     }
 
     [Fact]
-    public void Check_refuses_a_stall_time_no_shorter_than_a_machines_segments_naming_the_line_and_the_machines()
+    public void Check_refuses_a_stall_time_no_shorter_than_a_machines_legs_naming_the_line_and_the_machines()
     {
         // Regression (faults issue, item 10): the shipped workstation profile (2 h) with the default 120 min stall
         // time could never see a stall. The test workspace's stall_minutes = 2880 is no shorter than any machine's limit.
         var error = Assert.Throws<InvalidInputException>(() => new WorkspaceAdmin(_clock).Check(A));
         var problem = Assert.Single(error.Problems);
         Assert.Equal($"{Path.Combine(A, "campaign.toml")}:", problem[..(Path.Combine(A, "campaign.toml").Length + 1)]);
-        Assert.EndsWith(":60:1: stall_minutes = 2880: expected less than the segment wall time of every machine (halyard 2880 min, gunwale 1440 min, workbench 1440 min): a stall could never be seen before the wall-time limit ends the segment", problem, StringComparison.Ordinal);
+        Assert.EndsWith(":60:1: stall_minutes = 2880: expected less than the leg wall time of every machine (halyard 2880 min, gunwale 1440 min, workbench 1440 min): a stall could never be seen before the wall-time limit ends the leg", problem, StringComparison.Ordinal);
 
         File.WriteAllText(Path.Combine(A, "campaign.toml"), File.ReadAllText(Path.Combine(A, "campaign.toml")).Replace("stall_minutes = 2880", "stall_minutes = 600", StringComparison.Ordinal));
         Assert.Equal("ok", new WorkspaceAdmin(_clock).Check(A).Integrity);

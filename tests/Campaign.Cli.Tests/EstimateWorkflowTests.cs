@@ -43,7 +43,7 @@ public class EstimateWorkflowTests
         {
             Assert.True(r.GetProperty("low").GetDouble() < r.GetProperty("median").GetDouble());
             Assert.True(r.GetProperty("median").GetDouble() < r.GetProperty("high").GetDouble());
-            Assert.True(r.GetProperty("segments").GetInt32() >= 1);
+            Assert.True(r.GetProperty("legs").GetInt32() >= 1);
         }
 
         var total = json.GetProperty("total");

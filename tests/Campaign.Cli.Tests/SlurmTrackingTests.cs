@@ -11,12 +11,12 @@ public sealed class SlurmTrackingTests : IDisposable
     public void Dispose() => _folder.Dispose();
 
     [SlurmFact]
-    public void A_short_campaign_runs_through_two_segments_joined_by_an_afterany_dependency()
+    public void A_short_campaign_runs_through_two_legs_joined_by_an_afterany_dependency()
     {
         using var cluster = SlurmCluster.Use();
-        // One run only (level 1), paced so that the first segment is cut by the warning (Slurm time limits are minutes).
+        // One run only (level 1), paced so that the first leg is cut by the warning (Slurm time limits are minutes).
         var ws = SlurmWorkspace.Create(_folder.Path, warningSeconds: 40, prequeue: true);
-        File.WriteAllText(Path.Combine(ws, "runs", "sm-q1-a00.L1", "payload.json"), "{\"steps_per_second\": 90, \"checkpoint_every\": 100}");
+        File.WriteAllText(Path.Combine(ws, "runs", "sm-q1-a00.res1", "payload.json"), "{\"steps_per_second\": 90, \"checkpoint_every\": 100}");
         var deadline = DateTime.UtcNow + TimeSpan.FromMinutes(5);
         while (DateTime.UtcNow < deadline)
         {
@@ -30,11 +30,11 @@ public sealed class SlurmTrackingTests : IDisposable
             Thread.Sleep(2000);
         }
 
-        var run = CliRun.Live(_folder.Path, "--dir", "ws", "status", "--json").Json().GetProperty("runs").EnumerateArray().Single(r => r.GetProperty("id").GetString() == "sm-q1-a00.L1");
+        var run = CliRun.Live(_folder.Path, "--dir", "ws", "status", "--json").Json().GetProperty("runs").EnumerateArray().Single(r => r.GetProperty("id").GetString() == "sm-q1-a00.res1");
         Assert.True(run.GetProperty("state").GetString() == "finished", run.ToString());
-        var segments = run.GetProperty("segments").EnumerateArray().ToList();
-        Assert.True(segments.Count >= 2, run.ToString());
-        Assert.Contains(segments, s => s.TryGetProperty("restart_from", out var r) && r.GetString() == "newest at start"); // pre-queued with afterany
-        Assert.All(segments, s => Assert.False(string.IsNullOrEmpty(s.GetProperty("job_id").GetString())));
+        var legs = run.GetProperty("legs").EnumerateArray().ToList();
+        Assert.True(legs.Count >= 2, run.ToString());
+        Assert.Contains(legs, s => s.TryGetProperty("restart_from", out var r) && r.GetString() == "newest at start"); // pre-queued with afterany
+        Assert.All(legs, s => Assert.False(string.IsNullOrEmpty(s.GetProperty("job_id").GetString())));
     }
 }

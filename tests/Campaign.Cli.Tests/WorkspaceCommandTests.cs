@@ -97,7 +97,7 @@ public class WorkspaceCommandTests
         Assert.Equal(left, json.GetProperty("runs_left").GetInt32());
         Assert.Equal(left, json.GetProperty("runs").GetArrayLength());
         var workbench = json.GetProperty("runs").EnumerateArray().Where(r => r.GetProperty("machine").GetString() == "workbench").Select(r => r.GetProperty("id").GetString()).Order(StringComparer.Ordinal);
-        Assert.Equal(new[] { "sm-q1-a00.L1", "sm-q1-a00.L2", "sm-q1-a00.L3" }, workbench);
+        Assert.Equal(new[] { "sm-q1-a00.res1", "sm-q1-a00.res2", "sm-q1-a00.res3" }, workbench);
         Assert.Equal(2, CliRun.Of(folder.Path, "--dir", "ws", "forecast", "--replicas", "5").ExitCode);
     }
 

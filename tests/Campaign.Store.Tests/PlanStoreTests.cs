@@ -61,7 +61,7 @@ public class PlanStoreTests
     }
 
     [Fact]
-    public void An_older_plan_is_split_per_level_and_a_rehearsal_gets_its_own_id_when_the_database_is_upgraded()
+    public void An_older_plan_is_split_per_level_a_rehearsal_gets_its_own_id_and_ids_get_resolution_labels_when_the_database_is_upgraded()
     {
         using var folder = new TempFolder();
         var path = folder.File("c.db");
@@ -73,7 +73,7 @@ public class PlanStoreTests
                 INSERT INTO tracked_runs (run_id, config_id, level, machine, cores, folder, target_length, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0, position, state, created_at, updated_at, rehearsal)
                 VALUES ('a.L1', 'a', 1, 'box', 1, 'runs/a.L1', 100, 2, 0, 0, 0.1, 0, 0, 0, 0.018, 0, 'finished', 'x', 'x', 1)
                 """);
-            old.Execute("INSERT INTO segments (run_id, number, job_name, phase, worst_case_core_hours, wall_seconds, start_t, submitted_at) VALUES ('a.L1', 1, 'cmp.a_L1.s001', 'ended', 1, 1, 0, 'x')");
+            old.Execute("INSERT INTO segments (run_id, number, job_name, phase, worst_case_core_hours, wall_seconds, start_t, submitted_at, job_state) VALUES ('a.L1', 1, 'cmp.a_L1.s001', 'ended', 1, 1, 0, 'x', 'TimedOut')");
             old.Execute("INSERT INTO run_events (at, run_id, from_state, to_state, why) VALUES ('x', 'a.L1', '', 'planned', 'added')");
         }
 
@@ -88,10 +88,14 @@ public class PlanStoreTests
         Assert.Equal("migrated", levels[0].Estimate.Source);
         Assert.Null(levels[0].TargetLength);
 
-        Assert.Equal("a.L1.r1", connection.ExecuteScalar<string>("SELECT run_id FROM tracked_runs"));
-        Assert.Equal("a.L1.r1", connection.ExecuteScalar<string>("SELECT run_id FROM segments"));
-        Assert.Equal("cmp.a_L1.s001", connection.ExecuteScalar<string>("SELECT job_name FROM segments")); // the name the batch system knows stays
-        Assert.Equal("a.L1.r1", connection.ExecuteScalar<string>("SELECT run_id FROM run_events"));
+        Assert.Equal("a.res1.r1", connection.ExecuteScalar<string>("SELECT run_id FROM tracked_runs"));
+        Assert.Equal("a.res1.r1", connection.ExecuteScalar<string>("SELECT run_id FROM legs"));
+        // Schema 9: ".L1" became ".res1" (the former id is kept), the segment a leg, its state one of ours; the name
+        // the batch system knows stays.
+        Assert.Equal("cmp.a_L1.s001", connection.ExecuteScalar<string>("SELECT job_name FROM legs"));
+        Assert.Equal("a.L1.r1", connection.ExecuteScalar<string>("SELECT former_id FROM tracked_runs"));
+        Assert.Equal("out_of_time", connection.ExecuteScalar<string>("SELECT job_state FROM legs"));
+        Assert.Equal("a.res1.r1", connection.ExecuteScalar<string>("SELECT run_id FROM run_events"));
         Assert.Equal("ok", connection.ExecuteScalar<string>("PRAGMA foreign_key_check") ?? "ok");
     }
 }

@@ -18,7 +18,7 @@ public sealed record EstimateRequest(string Workspace, string Path, string Shown
 /// <param name="Notes">What the user should know about the inputs.</param>
 public sealed record EstimateResult(ProposalEstimate Estimate, long? ModelId, StorageModel Storage, IReadOnlyDictionary<string, double> Allocations, IReadOnlyList<string> Notes);
 
-/// <summary>The proposal estimate: core-hours, wall time, segments, charges and storage per configuration and level.</summary>
+/// <summary>The proposal estimate: core-hours, wall time, legs, charges and storage per configuration and level.</summary>
 public sealed class EstimateService
 {
     private readonly TimeProvider _time;

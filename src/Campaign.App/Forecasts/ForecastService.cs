@@ -19,7 +19,7 @@ public sealed record ForecastRequest(string Workspace, int Replicas, int Seed);
 /// <param name="Result">Finish dates, window charges and the chance the plan fits.</param>
 /// <param name="Source">What was simulated, in words.</param>
 /// <param name="RunsLeft">Runs simulated: the plan runs still to do.</param>
-/// <param name="FailureProbability">Segment failure probability used.</param>
+/// <param name="FailureProbability">Leg failure probability used.</param>
 /// <param name="FailureBasis">Where it came from.</param>
 public sealed record ForecastOutcome(ForecastResult Result, string Source, int RunsLeft, double FailureProbability, string FailureBasis);
 
@@ -53,7 +53,7 @@ public sealed class ForecastService
         var now = _time.GetUtcNow();
         var failure = FailureProbability(logs);
         var machines = Machines(workspace, snapshot, now);
-        var result = CampaignForecaster.Run(runs, machines, model, now, new ForecastOptions { Replicas = replicas, Seed = seed, SegmentFailureProbability = failure.Probability }, progress);
+        var result = CampaignForecaster.Run(runs, machines, model, now, new ForecastOptions { Replicas = replicas, Seed = seed, LegFailureProbability = failure.Probability }, progress);
         return new ForecastOutcome(result, source, runs.Count, failure.Probability, failure.Basis);
     }
 
@@ -103,7 +103,7 @@ public sealed class ForecastService
         double profileRatio(string planned, string actual) => workspace.Machine(planned).RelativeSpeed / workspace.Machine(actual).RelativeSpeed;
     }
 
-    /// <summary>Share of logged segments that failed: failed and partial runs over all segments logged (0.05 without logs).</summary>
+    /// <summary>Share of logged legs that failed: failed and partial runs over all legs logged (0.05 without logs).</summary>
     internal static (double Probability, string Basis) FailureProbability(IReadOnlyList<RunLog> logs)
     {
         if (logs.Count == 0)
@@ -111,10 +111,10 @@ public sealed class ForecastService
             return (0.05, "no run logs: 5% assumed (common practice, order of magnitude)");
         }
 
-        var segments = logs.Sum(l => l.Segments ?? 1);
+        var legs = logs.Sum(l => l.Legs ?? 1);
         var failures = logs.Count(l => l.Outcome != RunOutcome.Completed);
-        var p = Math.Clamp((double)failures / segments, 0, 0.5);
-        return (p, $"{failures} failed or partial runs over {segments} logged segments");
+        var p = Math.Clamp((double)failures / legs, 0, 0.5);
+        return (p, $"{failures} failed or partial runs over {legs} logged legs");
     }
 
     /// <summary>Each machine's queue and its allocation (in force or next), with what the ledger says was spent in it.</summary>
@@ -126,7 +126,7 @@ public sealed class ForecastService
         {
             var allocation = snapshot.Ledger.CurrentOrNext(profile.Name, today);
             var already = allocation is null ? 0 : snapshot.Ledger.SpentIn(allocation);
-            var waits = snapshot.Segments
+            var waits = snapshot.Legs
                 .Where(s => s.Machine == profile.Name && s.StartedAt is not null)
                 .Select(s => (s.StartedAt!.Value - s.SubmittedAt).TotalHours)
                 .Where(h => h >= 0)

@@ -153,10 +153,10 @@ public sealed class PlanService
         using var tx = workspace.Connection.BeginTransaction();
         foreach (var run in TrackingStore.Runs(workspace.Connection, tx).Where(r => !r.Rehearsal && configs.Contains(r.ConfigId) && r.State is not (RunState.Finished or RunState.Failed)))
         {
-            foreach (var segment in TrackingStore.SegmentsOf(workspace.Connection, run.RunId, tx).Where(s => s.Phase == SegmentPhase.Submitted))
+            foreach (var leg in TrackingStore.LegsOf(workspace.Connection, run.RunId, tx).Where(s => s.Phase == LegPhase.Submitted))
             {
-                segment.CancelFor("withdrawn");
-                TrackingStore.Save(workspace.Connection, tx, segment);
+                leg.CancelFor("withdrawn");
+                TrackingStore.Save(workspace.Connection, tx, leg);
             }
 
             TrackingStore.Save(workspace.Connection, tx, run, run.Abandon(at, $"withdrawn from the campaign by plan {planId.ToString(System.Globalization.CultureInfo.InvariantCulture)}"));
@@ -179,7 +179,7 @@ public sealed class PlanService
         }
     }
 
-    /// <summary>The started configurations, with what each still needs: at least what its open segments have committed.</summary>
+    /// <summary>The started configurations, with what each still needs: at least what its open legs have committed.</summary>
     private static IReadOnlyList<CarriedConfiguration> Carry(CampaignSnapshot snapshot)
     {
         var committed = snapshot.CommittedByRun();

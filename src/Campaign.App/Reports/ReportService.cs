@@ -56,14 +56,14 @@ public sealed class ReportService
         var forecast = plan is not null || snapshot.Runs.Any(r => !r.Rehearsal)
             ? new ForecastService(_time).Run(workspace, snapshot, inputs.Logs, model, request.Replicas, 1).Result
             : null;
-        var charges = snapshot.Segments.Where(s => !s.IsOpen && s.EndedAt is not null).Select(s => new ChargePoint(s.Machine, s.EndedAt!.Value, s.Charged ?? 0)).ToList();
+        var charges = snapshot.Legs.Where(s => !s.IsOpen && s.EndedAt is not null).Select(s => new ChargePoint(s.Machine, s.EndedAt!.Value, s.Charged ?? 0)).ToList();
         var allocations = workspace.Config.Allocations.Select(a => new AllocationLine(
             a.Machine,
             new DateTimeOffset(a.Start.ToDateTime(TimeOnly.MinValue), TimeSpan.Zero),
             new DateTimeOffset(a.End.ToDateTime(TimeOnly.MaxValue), TimeSpan.Zero),
             a.CoreHours(workspace.Machine(a.Machine)),
             plan?.Entries.Where(e => e.Machine == a.Machine).Sum(e => e.Estimate.ChargedCoreHours) ?? 0)).ToList();
-        var starts = Store.TrackingStore.Segments(workspace.Connection).ToLookup(s => s.RunId, StringComparer.Ordinal);
+        var starts = Store.TrackingStore.Legs(workspace.Connection).ToLookup(s => s.RunId, StringComparer.Ordinal);
         var progress = snapshot.Runs.Select(r =>
         {
             var points = starts[r.RunId].OrderBy(s => s.Number)
@@ -112,5 +112,5 @@ public sealed class ReportService
         return data;
     }
 
-    private static ProposalRow Row(EstimateRow r) => new(r.Id + (r.Kind == "ecc" ? " (trials)" : ""), r.Level, r.Machine, r.Median, r.Low, r.High, r.ChargedCoreHours, r.Segments);
+    private static ProposalRow Row(EstimateRow r) => new(r.Id + (r.Kind == "ecc" ? " (trials)" : ""), r.Level, r.Machine, r.Median, r.Low, r.High, r.ChargedCoreHours, r.Legs);
 }

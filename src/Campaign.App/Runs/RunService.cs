@@ -151,14 +151,14 @@ public sealed class RunService
     /// </summary>
     private static void Settle(Workspace workspace, Microsoft.Data.Sqlite.SqliteTransaction tx, Batch.IBatchSystem batch, TrackedRun run)
     {
-        foreach (var segment in TrackingStore.SegmentsOf(workspace.Connection, run.RunId, tx).Where(s => s.IsOpen))
+        foreach (var leg in TrackingStore.LegsOf(workspace.Connection, run.RunId, tx).Where(s => s.IsOpen))
         {
-            var id = segment.JobId;
-            if (segment.Phase == SegmentPhase.Intent)
+            var id = leg.JobId;
+            if (leg.Phase == LegPhase.Intent)
             {
                 try
                 {
-                    id = batch.FindAsync(segment.JobName, Path.Combine(workspace.Root, run.Folder), CancellationToken.None).GetAwaiter().GetResult();
+                    id = batch.FindAsync(leg.JobName, Path.Combine(workspace.Root, run.Folder), CancellationToken.None).GetAwaiter().GetResult();
                 }
                 catch (Batch.BatchSystemException)
                 {
@@ -167,15 +167,15 @@ public sealed class RunService
 
                 if (id is null)
                 {
-                    TrackingStore.DeleteIntent(workspace.Connection, tx, segment.Id);
+                    TrackingStore.DeleteIntent(workspace.Connection, tx, leg.Id);
                     continue;
                 }
 
-                segment.Submitted(id, "");
+                leg.Submitted(id, "");
             }
 
-            segment.CancelFor("abandoned");
-            TrackingStore.Save(workspace.Connection, tx, segment);
+            leg.CancelFor("abandoned");
+            TrackingStore.Save(workspace.Connection, tx, leg);
             try
             {
                 batch.CancelAsync(id!, CancellationToken.None).GetAwaiter().GetResult();

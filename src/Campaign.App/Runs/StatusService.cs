@@ -4,7 +4,7 @@ using Campaign.Store;
 
 namespace Campaign.App.Runs;
 
-/// <summary>One job segment as status shows it.</summary>
+/// <summary>One job leg as status shows it.</summary>
 /// <param name="Number">Its number in the run's chain.</param>
 /// <param name="JobId">The batch system's id.</param>
 /// <param name="State">"intent", or the normalised job state.</param>
@@ -14,15 +14,15 @@ namespace Campaign.App.Runs;
 /// <param name="ElapsedSeconds">Wall time used.</param>
 /// <param name="ChargedCoreHours">Charge.</param>
 /// <param name="RestartFrom">Checkpoint it restarted from.</param>
-public sealed record SegmentView(long Number, string? JobId, string State, string NativeState, int? ExitCode, int? Signal, double? ElapsedSeconds, double? ChargedCoreHours, string? RestartFrom);
+public sealed record LegView(long Number, string? JobId, string State, string NativeState, int? ExitCode, int? Signal, double? ElapsedSeconds, double? ChargedCoreHours, string? RestartFrom);
 
 /// <summary>One tracked run as status shows it.</summary>
 /// <param name="Run">The run.</param>
 /// <param name="RateMPerHour">Simulated M per wall hour so far.</param>
 /// <param name="PredictedFinish">When it reaches its target at that rate.</param>
 /// <param name="ChargedCoreHours">Charged so far.</param>
-/// <param name="Segments">Its segments.</param>
-public sealed record RunView(RunRecord Run, double? RateMPerHour, DateTimeOffset? PredictedFinish, double ChargedCoreHours, IReadOnlyList<SegmentView> Segments);
+/// <param name="Legs">Its legs.</param>
+public sealed record RunView(RunRecord Run, double? RateMPerHour, DateTimeOffset? PredictedFinish, double ChargedCoreHours, IReadOnlyList<LegView> Legs);
 
 /// <summary>How the plan stands, in counts.</summary>
 /// <param name="PlanId">The current plan.</param>
@@ -55,15 +55,15 @@ public sealed class StatusService
     {
         using var workspace = Workspace.Open(workspaceRoot, _time);
         var snapshot = CampaignSnapshot.Load(workspace);
-        var segments = TrackingStore.Segments(workspace.Connection).GroupBy(s => s.RunId).ToDictionary(g => g.Key, g => g.OrderBy(s => s.Number).ToList(), StringComparer.Ordinal);
+        var legs = TrackingStore.Legs(workspace.Connection).GroupBy(s => s.RunId).ToDictionary(g => g.Key, g => g.OrderBy(s => s.Number).ToList(), StringComparer.Ordinal);
         var now = _time.GetUtcNow();
         var views = snapshot.Runs.Select(r =>
         {
-            var mine = segments.GetValueOrDefault(r.RunId) ?? new List<JobSegment>();
+            var mine = legs.GetValueOrDefault(r.RunId) ?? new List<JobLeg>();
             var elapsedHours = mine.Sum(s => s.Elapsed?.TotalHours ?? 0);
             double? rate = elapsedHours > 0 ? r.Progress / elapsedHours : null;
             DateTimeOffset? finish = rate is > 0 && r.State.IsActive() ? now + TimeSpan.FromHours((r.TargetLength - r.Progress) / rate.Value) : null;
-            var list = mine.Select(s => new SegmentView(s.Number, s.JobId, s.Phase == SegmentPhase.Intent ? "intent" : s.JobState, s.NativeState, s.ExitCode, s.Signal, s.Elapsed?.TotalSeconds, s.Charged, s.RestartFrom)).ToList();
+            var list = mine.Select(s => new LegView(s.Number, s.JobId, s.Phase == LegPhase.Intent ? "intent" : s.JobState, s.NativeState, s.ExitCode, s.Signal, s.Elapsed?.TotalSeconds, s.Charged, s.RestartFrom)).ToList();
             return new RunView(r, rate, finish, mine.Sum(s => s.Charged ?? 0), list);
         }).ToList();
         PlanSummary? plan = null;

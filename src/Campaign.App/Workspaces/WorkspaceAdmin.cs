@@ -55,16 +55,16 @@ public sealed class WorkspaceAdmin
     }
 
     /// <summary>
-    /// A stall (no progress for stall_minutes while running) can only be seen within a segment: a machine whose
-    /// segment wall time is not longer than stall_minutes would let a code that never advances run segment after
-    /// segment. Every such machine is named, with the line of stall_minutes in campaign.toml.
+    /// A stall (no progress for stall_minutes while running) can only be seen within a leg: a machine whose
+    /// leg wall time is not longer than stall_minutes would let a code that never advances run leg after
+    /// leg. Every such machine is named, with the line of stall_minutes in campaign.toml.
     /// </summary>
     private static IReadOnlyList<string> StallProblems(string root)
     {
         var (config, machines) = Workspace.ReadSettings(root);
         var stall = config.Tracking.StallMinutes;
         var tooShort = config.Machines
-            .Select(m => (Machine: m, Wall: config.Tracking.SegmentMinutes ?? machines[m].WallLimitHours * 60))
+            .Select(m => (Machine: m, Wall: config.Tracking.LegMinutes ?? machines[m].WallLimitHours * 60))
             .Where(m => m.Wall <= stall)
             .ToList();
         if (tooShort.Count == 0)
@@ -77,7 +77,7 @@ public sealed class WorkspaceAdmin
         var line = Array.FindIndex(lines, l => l.TrimStart().StartsWith("stall_minutes", StringComparison.Ordinal));
         var where = line < 0 ? $"{path}: [tracking] stall_minutes (default)" : $"{path}:{(line + 1).ToString(CultureInfo.InvariantCulture)}:{(lines[line].IndexOf('s', StringComparison.Ordinal) + 1).ToString(CultureInfo.InvariantCulture)}: stall_minutes";
         var walls = string.Join(", ", tooShort.Select(m => $"{m.Machine} {m.Wall.ToString("0.###", CultureInfo.InvariantCulture)} min"));
-        return new[] { $"{where} = {stall.ToString("0.###", CultureInfo.InvariantCulture)}: expected less than the segment wall time of every machine ({walls}): a stall could never be seen before the wall-time limit ends the segment" };
+        return new[] { $"{where} = {stall.ToString("0.###", CultureInfo.InvariantCulture)}: expected less than the leg wall time of every machine ({walls}): a stall could never be seen before the wall-time limit ends the leg" };
     }
 
     /// <summary>A consistent copy of the workspace's database, config and profiles.</summary>

@@ -4,7 +4,7 @@ using System.Globalization;
 namespace Campaign.Batch.Local;
 
 /// <summary>
-/// The embedded default batch system: runs each job segment as a local process under its own supervisor (see
+/// The embedded default batch system: runs each job leg as a local process under its own supervisor (see
 /// <see cref="LocalSupervisor"/>), at most <see cref="LocalOptions.Cores"/> cores at a time, first come first
 /// served, an afterany dependency waiting for the earlier job to end. All state is in files under
 /// <see cref="LocalOptions.Root"/> (pids with their start times, so a reused pid is never mistaken for the job;
@@ -99,7 +99,7 @@ public sealed class LocalBatchSystem : IBatchSystem
             var supervisor = LocalJobFiles.ReadPid(files.SupervisorPidPath);
             if (supervisor is null)
             {
-                files.WriteExit(new LocalExitRecord("cancelled", null, null, 0, Now()));
+                files.WriteExit(new LocalExitRecord("stopped", null, null, 0, Now()));
             }
             else if (Posix.IsAlive(supervisor.Value.Pid, supervisor.Value.Ticks))
             {
@@ -114,7 +114,7 @@ public sealed class LocalBatchSystem : IBatchSystem
             {
                 // The supervisor died: end the script's process group here.
                 Posix.SignalGroup(script.Pid, Posix.Signals["KILL"]);
-                files.WriteExit(new LocalExitRecord("cancelled", null, 9, 0, Now()));
+                files.WriteExit(new LocalExitRecord("stopped", null, 9, 0, Now()));
             }
         }
 
@@ -150,12 +150,13 @@ public sealed class LocalBatchSystem : IBatchSystem
         {
             var state = exit.State switch
             {
-                "completed" => JobState.Completed,
-                "failed" => JobState.Failed,
-                "timed_out" => JobState.TimedOut,
-                "cancelled" => JobState.Cancelled,
-                "launch_failed" => JobState.LaunchFailed,
-                _ => JobState.Unknown,
+                // The local runner's own words; the second of each pair is what runners before version 8 wrote.
+                "succeeded" or "completed" => JobState.Succeeded,
+                "crashed" or "failed" => JobState.Crashed,
+                "out_of_time" or "timed_out" => JobState.OutOfTime,
+                "stopped" or "cancelled" => JobState.Stopped,
+                "no_start" or "launch_failed" => JobState.Crashed,
+                _ => JobState.Unrecognised,
             };
             return new JobStatus(id, state, exit.State, exit.ExitCode, exit.Signal, TimeSpan.FromSeconds(exit.ElapsedSeconds), job.Cores, job.Name, "exit record");
         }
@@ -163,23 +164,23 @@ public sealed class LocalBatchSystem : IBatchSystem
         var supervisor = LocalJobFiles.ReadPid(files.SupervisorPidPath);
         if (supervisor is null)
         {
-            return new JobStatus(id, JobState.Pending, "queued", Name: job.Name);
+            return new JobStatus(id, JobState.Waiting, "queued", Name: job.Name);
         }
 
         if (Posix.IsAlive(supervisor.Value.Pid, supervisor.Value.Ticks))
         {
-            return new JobStatus(id, JobState.Running, "running", ChargedCores: job.Cores, Name: job.Name);
+            return new JobStatus(id, JobState.Working, "running", ChargedCores: job.Cores, Name: job.Name);
         }
 
         if (LocalJobFiles.ReadPid(files.ScriptPidPath) is { } script && Posix.IsAlive(script.Pid, script.Ticks))
         {
-            return new JobStatus(id, JobState.Running, "running (supervisor gone)", ChargedCores: job.Cores, Name: job.Name);
+            return new JobStatus(id, JobState.Working, "running (supervisor gone)", ChargedCores: job.Cores, Name: job.Name);
         }
 
         // Both processes are gone and no exit record was written (the machine rebooted, or the supervisor was
         // killed): the runner has lost the job's outcome. Reported as missing, never as a success: the host carries
         // on from the run's newest valid checkpoint.
-        return new JobStatus(id, JobState.Missing, "ended without an exit record", ChargedCores: job.Cores, Name: job.Name);
+        return new JobStatus(id, JobState.Vanished, "ended without an exit record", ChargedCores: job.Cores, Name: job.Name);
     }
 
     /// <summary>Starts queued jobs, oldest first, while their cores fit and their dependency has ended.</summary>

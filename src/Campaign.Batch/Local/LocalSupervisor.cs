@@ -30,7 +30,7 @@ public static class LocalSupervisor
 
         if (File.Exists(files.CancelPath))
         {
-            files.WriteExit(new LocalExitRecord("cancelled", null, null, 0, Now()));
+            files.WriteExit(new LocalExitRecord("stopped", null, null, 0, Now()));
             return 0;
         }
 
@@ -57,7 +57,7 @@ public static class LocalSupervisor
         }
         catch (Exception e) when (e is System.ComponentModel.Win32Exception or InvalidOperationException)
         {
-            files.WriteExit(new LocalExitRecord("launch_failed", null, null, 0, Now()));
+            files.WriteExit(new LocalExitRecord("no_start", null, null, 0, Now()));
             return 0;
         }
 
@@ -84,13 +84,13 @@ public static class LocalSupervisor
             var now = watch.Elapsed;
             if (ending is null && (cancel.IsSet || File.Exists(files.CancelPath)))
             {
-                ending = "cancelled";
+                ending = "stopped";
                 Posix.SignalGroup(pid, Posix.Signals["TERM"]);
                 killAt = now + grace;
             }
             else if (ending is null && now >= limit)
             {
-                ending = "timed_out";
+                ending = "out_of_time";
                 Posix.SignalGroup(pid, Posix.Signals["TERM"]);
                 killAt = now + grace;
             }
@@ -111,7 +111,7 @@ public static class LocalSupervisor
         Task.WaitAll(new Task[] { pumpOut, pumpErr }, TimeSpan.FromSeconds(5));
         var code = process.ExitCode;
         int? signal = code > 128 ? code - 128 : 0;
-        var state = ending ?? (code == 0 ? "completed" : "failed");
+        var state = ending ?? (code == 0 ? "succeeded" : "crashed");
         var record = new LocalExitRecord(state, code, signal, watch.Elapsed.TotalSeconds, Now());
         // The outcome must not be lost to a full or failing disk: keep trying (the job counts as running meanwhile).
         for (var wait = 1; ; wait = Math.Min(wait * 2, 60))

@@ -9,16 +9,16 @@ public static class PbsStates
     /// <summary>State letters of jobs that have not finished.</summary>
     public static readonly IReadOnlyDictionary<string, JobState> Active = new Dictionary<string, JobState>(StringComparer.Ordinal)
     {
-        ["Q"] = JobState.Pending,   // queued
-        ["H"] = JobState.Pending,   // held
-        ["W"] = JobState.Pending,   // waiting for its start time
-        ["T"] = JobState.Pending,   // in transit
-        ["M"] = JobState.Pending,   // moved to another server
-        ["R"] = JobState.Running,   // running
-        ["B"] = JobState.Running,   // array job: at least one subjob started
-        ["E"] = JobState.Finishing, // exiting after having run
-        ["S"] = JobState.Suspended, // suspended
-        ["U"] = JobState.Suspended, // suspended: workstation busy
+        ["Q"] = JobState.Waiting,   // queued
+        ["H"] = JobState.Waiting,   // held
+        ["W"] = JobState.Waiting,   // waiting for its start time
+        ["T"] = JobState.Waiting,   // in transit
+        ["M"] = JobState.Waiting,   // moved to another server
+        ["R"] = JobState.Working,   // running
+        ["B"] = JobState.Working,   // array job: at least one subjob started
+        ["E"] = JobState.Working, // exiting after having run
+        ["S"] = JobState.Paused, // suspended
+        ["U"] = JobState.Paused, // suspended: workstation busy
     };
 
     /// <summary>State letters of finished jobs: F (PBS Professional, qstat -x), X (finished subjob), C (Torque).</summary>
@@ -40,26 +40,26 @@ public static class PbsStates
 
         if (!Finished.Contains(letter))
         {
-            return (JobState.Unknown, null, null);
+            return (JobState.Unrecognised, null, null);
         }
 
         if (exitStatus is not { } status)
         {
-            return (JobState.Unknown, null, null);
+            return (JobState.Unrecognised, null, null);
         }
 
         if (status == -29 || (comment?.Contains("walltime", StringComparison.OrdinalIgnoreCase) ?? false))
         {
-            return (JobState.TimedOut, status, null);
+            return (JobState.OutOfTime, status, null);
         }
 
         return status switch
         {
-            0 => (JobState.Completed, 0, 0),
-            < 0 => (JobState.LaunchFailed, status, null),
-            > 256 => (JobState.Failed, status, status - 256),
-            > 128 => (JobState.Failed, status, status - 128),
-            _ => (JobState.Failed, status, 0),
+            0 => (JobState.Succeeded, 0, 0),
+            < 0 => (JobState.Crashed, status, null),
+            > 256 => (JobState.Crashed, status, status - 256),
+            > 128 => (JobState.Crashed, status, status - 128),
+            _ => (JobState.Crashed, status, 0),
         };
     }
 }

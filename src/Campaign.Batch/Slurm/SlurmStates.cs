@@ -2,7 +2,7 @@ namespace Campaign.Batch.Slurm;
 
 /// <summary>
 /// Slurm's job state codes (squeue, scontrol and sacct; long names and squeue's short codes) mapped to
-/// <see cref="JobState"/>. Anything else maps to <see cref="JobState.Unknown"/>. Table in docs/batch-systems.md.
+/// <see cref="JobState"/>. Anything else maps to <see cref="JobState.Unrecognised"/>. Table in docs/batch-systems.md.
 /// </summary>
 public static class SlurmStates
 {
@@ -10,34 +10,34 @@ public static class SlurmStates
     public static readonly IReadOnlyDictionary<string, JobState> Map = new Dictionary<string, JobState>(StringComparer.Ordinal)
     {
         // Base states.
-        ["PENDING"] = JobState.Pending, ["PD"] = JobState.Pending,
-        ["RUNNING"] = JobState.Running, ["R"] = JobState.Running,
-        ["SUSPENDED"] = JobState.Suspended, ["S"] = JobState.Suspended,
-        ["COMPLETED"] = JobState.Completed, ["CD"] = JobState.Completed,
-        ["FAILED"] = JobState.Failed, ["F"] = JobState.Failed,
-        ["TIMEOUT"] = JobState.TimedOut, ["TO"] = JobState.TimedOut,
-        ["CANCELLED"] = JobState.Cancelled, ["CA"] = JobState.Cancelled,
-        ["NODE_FAIL"] = JobState.NodeFailed, ["NF"] = JobState.NodeFailed,
-        ["PREEMPTED"] = JobState.Preempted, ["PR"] = JobState.Preempted,
-        ["OUT_OF_MEMORY"] = JobState.OutOfMemory, ["OOM"] = JobState.OutOfMemory,
-        ["BOOT_FAIL"] = JobState.LaunchFailed, ["BF"] = JobState.LaunchFailed,
-        ["DEADLINE"] = JobState.DeadlineMissed, ["DL"] = JobState.DeadlineMissed,
+        ["PENDING"] = JobState.Waiting, ["PD"] = JobState.Waiting,
+        ["RUNNING"] = JobState.Working, ["R"] = JobState.Working,
+        ["SUSPENDED"] = JobState.Paused, ["S"] = JobState.Paused,
+        ["COMPLETED"] = JobState.Succeeded, ["CD"] = JobState.Succeeded,
+        ["FAILED"] = JobState.Crashed, ["F"] = JobState.Crashed,
+        ["TIMEOUT"] = JobState.OutOfTime, ["TO"] = JobState.OutOfTime,
+        ["CANCELLED"] = JobState.Stopped, ["CA"] = JobState.Stopped,
+        ["NODE_FAIL"] = JobState.Interrupted, ["NF"] = JobState.Interrupted,
+        ["PREEMPTED"] = JobState.Interrupted, ["PR"] = JobState.Interrupted,
+        ["OUT_OF_MEMORY"] = JobState.Crashed, ["OOM"] = JobState.Crashed,
+        ["BOOT_FAIL"] = JobState.Crashed, ["BF"] = JobState.Crashed,
+        ["DEADLINE"] = JobState.Crashed, ["DL"] = JobState.Crashed,
 
         // Flags shown instead of the base state.
-        ["COMPLETING"] = JobState.Finishing, ["CG"] = JobState.Finishing,
-        ["CONFIGURING"] = JobState.Pending, ["CF"] = JobState.Pending,
-        ["REQUEUED"] = JobState.Requeued, ["RQ"] = JobState.Requeued,
-        ["REQUEUE_HOLD"] = JobState.Requeued, ["RH"] = JobState.Requeued,
-        ["REQUEUE_FED"] = JobState.Requeued, ["RF"] = JobState.Requeued,
-        ["SPECIAL_EXIT"] = JobState.Requeued, ["SE"] = JobState.Requeued,
-        ["RESIZING"] = JobState.Running, ["RS"] = JobState.Running,
-        ["SIGNALING"] = JobState.Running, ["SI"] = JobState.Running,
-        ["STAGE_OUT"] = JobState.Finishing, ["SO"] = JobState.Finishing,
-        ["STOPPED"] = JobState.Suspended, ["ST"] = JobState.Suspended,
-        ["RESV_DEL_HOLD"] = JobState.Pending, ["RD"] = JobState.Pending,
-        ["REVOKED"] = JobState.Cancelled, ["RV"] = JobState.Cancelled,
-        ["POWER_UP_NODE"] = JobState.Pending, ["PU"] = JobState.Pending,
-        ["UPDATE_DB"] = JobState.Finishing, ["UD"] = JobState.Finishing,
+        ["COMPLETING"] = JobState.Working, ["CG"] = JobState.Working,
+        ["CONFIGURING"] = JobState.Waiting, ["CF"] = JobState.Waiting,
+        ["REQUEUED"] = JobState.Waiting, ["RQ"] = JobState.Waiting,
+        ["REQUEUE_HOLD"] = JobState.Waiting, ["RH"] = JobState.Waiting,
+        ["REQUEUE_FED"] = JobState.Waiting, ["RF"] = JobState.Waiting,
+        ["SPECIAL_EXIT"] = JobState.Waiting, ["SE"] = JobState.Waiting,
+        ["RESIZING"] = JobState.Working, ["RS"] = JobState.Working,
+        ["SIGNALING"] = JobState.Working, ["SI"] = JobState.Working,
+        ["STAGE_OUT"] = JobState.Working, ["SO"] = JobState.Working,
+        ["STOPPED"] = JobState.Paused, ["ST"] = JobState.Paused,
+        ["RESV_DEL_HOLD"] = JobState.Waiting, ["RD"] = JobState.Waiting,
+        ["REVOKED"] = JobState.Stopped, ["RV"] = JobState.Stopped,
+        ["POWER_UP_NODE"] = JobState.Waiting, ["PU"] = JobState.Waiting,
+        ["UPDATE_DB"] = JobState.Working, ["UD"] = JobState.Working,
     };
 
     /// <summary>
@@ -47,6 +47,6 @@ public static class SlurmStates
     public static JobState Parse(string native)
     {
         var word = native.Trim().Split(' ', 2)[0].TrimEnd('+');
-        return Map.TryGetValue(word, out var state) ? state : JobState.Unknown;
+        return Map.TryGetValue(word, out var state) ? state : JobState.Unrecognised;
     }
 }

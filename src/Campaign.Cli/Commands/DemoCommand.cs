@@ -70,7 +70,7 @@ internal static class DemoCommand
 
             File.WriteAllText(candidatesPath, ownCandidates is null ? demo["candidates.csv"] : File.ReadAllText(app.Resolve(ownCandidates)));
             File.WriteAllText(logsPath, demo["run-logs.csv"]);
-            TrackingCommands.WriteSegmentScript(target);
+            TrackingCommands.WriteLegScript(target);
 
             // In --json mode every step writes JSON into its own buffer; the demo prints them as one document. For
             // people, long tables go in full into demo-output/ and the terminal shows their head and their totals.
@@ -142,7 +142,7 @@ internal static class DemoCommand
             Show("model");
             o.WriteLine();
 
-            o.WriteLine("== 4. Estimate the proposal: core-hours, wall time, segments, charges and storage per run and level");
+            o.WriteLine("== 4. Estimate the proposal: core-hours, wall time, legs, charges and storage per run and level");
             var estimateOptions = new EstimateOptions { EccentricityTrials = 2 };
             var estimate = new EstimateService(time).Estimate(new EstimateRequest(target, candidatesPath, "candidates.csv", estimateOptions));
             EstimateCommand.Write(Step("estimate"), estimate, "candidates.csv", "table");

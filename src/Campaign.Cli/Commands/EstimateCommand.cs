@@ -24,7 +24,7 @@ internal static class EstimateCommand
         var trialLength = new Option<double>("--ecc-length") { Description = "Simulated length of each trial run in M (default 1500)", DefaultValueFactory = _ => 1500 };
         var samples = new Option<int>("--samples") { Description = "Monte Carlo draws for the totals (default 4000)", DefaultValueFactory = _ => 4000 };
         var seed = new Option<int>("--seed") { Description = "Seed of the Monte Carlo draws (default 1)", DefaultValueFactory = _ => 1 };
-        var command = new Command("estimate", "Core-hours, wall time, job segments, charges and storage for candidate configurations, with totals")
+        var command = new Command("estimate", "Core-hours, wall time, job legs, charges and storage for candidate configurations, with totals")
         {
             file, interval, format, margin, trials, trialLength, samples, seed,
         };
@@ -92,13 +92,13 @@ internal static class EstimateCommand
 
     private static readonly string[] Header =
     {
-        "id", "level", "kind", "machine", "cores", "T/M", "median core-h", "low", "high", "wall h", "segments", "node-h", "charged core-h", "checkpoint GB", "output GB", "flags",
+        "id", "level", "kind", "machine", "cores", "T/M", "median core-h", "low", "high", "wall h", "legs", "node-h", "charged core-h", "checkpoint GB", "output GB", "flags",
     };
 
     private static string[] Cells(EstimateRow r) => new[]
     {
         r.Id, Format.Integer(r.Level), r.Kind, r.Machine, Format.Integer(r.Cores), Format.Fixed(r.LengthM, 0), Format.Fixed(r.Median, 0), Format.Fixed(r.Low, 0),
-        Format.Fixed(r.High, 0), Format.Fixed(r.WallHours, 1), Format.Integer(r.Segments), Format.Fixed(r.NodeHours, 0), Format.Fixed(r.ChargedCoreHours, 0),
+        Format.Fixed(r.High, 0), Format.Fixed(r.WallHours, 1), Format.Integer(r.Legs), Format.Fixed(r.NodeHours, 0), Format.Fixed(r.ChargedCoreHours, 0),
         Format.Fixed(r.CheckpointGb, 1), Format.Fixed(r.OutputGb, 1), Flags(r),
     };
 

@@ -42,7 +42,7 @@ internal static class ForecastCommand
                 result.Replicas,
                 Source = source,
                 outcome.RunsLeft,
-                SegmentFailureProbability = failure.Probability,
+                LegFailureProbability = failure.Probability,
                 FailureBasis = failure.Basis,
                 Finish = result.Finish,
                 result.ProbabilityFits,
@@ -55,7 +55,7 @@ internal static class ForecastCommand
         }
 
         var o = context.Out;
-        o.WriteLine($"Forecast from {result.Start:yyyy-MM-dd HH:mm} UTC of {source}; {result.Replicas} replicas; segment failure probability {Format.Fixed(failure.Probability * 100, 1)}% ({failure.Basis}).");
+        o.WriteLine($"Forecast from {result.Start:yyyy-MM-dd HH:mm} UTC of {source}; {result.Replicas} replicas; leg failure probability {Format.Fixed(failure.Probability * 100, 1)}% ({failure.Basis}).");
         o.WriteLine($"Campaign finishes: P10 {Date(result.Finish.P10)}, P50 {Date(result.Finish.P50)}, P90 {Date(result.Finish.P90)} (\"not within\": fewer replicas than that finished within the allocation).");
         o.WriteLine($"Probability that the plan fits its allocations (every run finished, within charge and end date): {Format.Fixed(result.ProbabilityFits * 100, 1)}%.");
         o.WriteLine();
@@ -79,10 +79,10 @@ internal static class ForecastCommand
             o.WriteLine();
         }
 
-        var table = new TextTable("run", "machine", "finish P10", "P50", "P90", "P(late)", "segments left");
+        var table = new TextTable("run", "machine", "finish P10", "P50", "P90", "P(late)", "legs left");
         foreach (var r in result.Runs.OrderByDescending(r => r.Finish.P90 ?? DateTimeOffset.MaxValue).Take(shown))
         {
-            table.Add(r.Id, r.Machine, Date(r.Finish.P10), Date(r.Finish.P50), Date(r.Finish.P90), Format.Fixed(r.ProbabilityLate, 2), Format.Fixed(r.MeanSegments, 1));
+            table.Add(r.Id, r.Machine, Date(r.Finish.P10), Date(r.Finish.P50), Date(r.Finish.P90), Format.Fixed(r.ProbabilityLate, 2), Format.Fixed(r.MeanLegs, 1));
         }
 
         table.WriteTo(o);

@@ -16,8 +16,8 @@ internal static class InitCommand
         {
             var target = context.Parse.GetValue(folder) is { } given ? app.Resolve(given) : context.Workspace;
             var written = new WorkspaceAdmin(context.Time).Create(target, EmbeddedFiles.Read("templates/campaign.toml"), EmbeddedFiles.Under("profiles/"), context.Parse.GetValue(force)).ToList();
-            TrackingCommands.WriteSegmentScript(target);
-            written.Add(Path.Combine(target, "run-segment.sh"));
+            TrackingCommands.WriteLegScript(target);
+            written.Add(Path.Combine(target, "run-leg.sh"));
             if (context.Json)
             {
                 Json.Write(context.Out, new { Workspace = target, Files = written });

@@ -23,13 +23,13 @@ internal static class TrackingCommands
         yield return Abandon(app);
     }
 
-    /// <summary>Writes the template batch script (run-segment.sh, executable) into a workspace unless one is there.</summary>
-    public static void WriteSegmentScript(string workspace)
+    /// <summary>Writes the template batch script (run-leg.sh, executable) into a workspace unless one is there.</summary>
+    public static void WriteLegScript(string workspace)
     {
-        var path = Path.Combine(workspace, "run-segment.sh");
+        var path = Path.Combine(workspace, "run-leg.sh");
         if (!File.Exists(path))
         {
-            File.WriteAllText(path, EmbeddedFiles.Read("templates/run-segment.sh"));
+            File.WriteAllText(path, EmbeddedFiles.Read("templates/run-leg.sh"));
             File.SetUnixFileMode(path, (UnixFileMode)Convert.ToInt32("755", 8));
         }
     }
@@ -119,7 +119,7 @@ internal static class TrackingCommands
     private static Command Status(CampaignApp app)
     {
         var events = new Option<int>("--events") { Description = "Show this many recent run events too (default 0)" };
-        var command = new Command("status", "Runs with their state, progress, segments, charge and predicted finish; the plan's standing and machines at fault") { events };
+        var command = new Command("status", "Runs with their state, progress, legs, charge and predicted finish; the plan's standing and machines at fault") { events };
         app.Bind(command, context =>
         {
             var count = context.Parse.GetValue(events);
@@ -205,7 +205,7 @@ internal static class TrackingCommands
                     v.RateMPerHour,
                     PredictedFinish = v.PredictedFinish?.ToString("O", CultureInfo.InvariantCulture),
                     v.ChargedCoreHours,
-                    v.Segments,
+                    v.Legs,
                 }),
                 Events = status.Events.Count > 0 ? status.Events : null,
             });
@@ -233,20 +233,20 @@ internal static class TrackingCommands
         }
 
         o.WriteLine();
-        var table = new TextTable("run", "state", "machine", "progress", "t / target M", "segments", "job", "charged core-h", "M per hour", "predicted finish", "reason");
+        var table = new TextTable("run", "state", "machine", "progress", "t / target M", "legs", "job", "charged core-h", "M per hour", "predicted finish", "reason");
         foreach (var v in status.Runs)
         {
             var r = v.Run;
             var fraction = r.DoneFraction;
             var bar = "[" + new string('#', (int)Math.Round(fraction * 20)).PadRight(20, '.') + "] " + Format.Fixed(fraction * 100, 0).PadLeft(3) + "%";
-            var current = v.Segments.LastOrDefault();
+            var current = v.Legs.LastOrDefault();
             table.Add(
                 r.RunId,
                 r.State.Name(),
                 r.Machine,
                 bar,
                 Format.Fixed(r.Progress, 0) + " / " + Format.Fixed(r.TargetLength, 0),
-                Format.Integer(v.Segments.Count),
+                Format.Integer(v.Legs.Count),
                 current is null ? "-" : $"{current.JobId ?? "?"}:{current.State}",
                 Format.Fixed(v.ChargedCoreHours, 1),
                 v.RateMPerHour is { } rate ? Format.Fixed(rate, 0) : "-",

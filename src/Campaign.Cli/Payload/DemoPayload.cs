@@ -57,7 +57,7 @@ internal static class DemoPayload
         var state = Start(folder, checkpoints, run.omega0);
         using var progress = new StreamWriter(new FileStream(Path.Combine(folder, "progress.dat"), FileMode.Append, FileAccess.Write, FileShare.ReadWrite)) { AutoFlush = true };
         var clock = Stopwatch.StartNew();
-        long stepsThisSegment = 0;
+        long stepsThisLeg = 0;
         while (state.T < run.target_length)
         {
             if (Volatile.Read(ref stop) == 1)
@@ -73,7 +73,7 @@ internal static class DemoPayload
             }
 
             state = Step(state, dt, inspiral, run.end_of_inspiral_x);
-            stepsThisSegment++;
+            stepsThisLeg++;
             if (state.Steps % progressEvery == 0)
             {
                 var norm = instability > 0 ? 1e-6 * Math.Exp(instability * state.T) : 1e-6 * (1 + 0.05 * Math.Sin(state.T / 37));
@@ -87,7 +87,7 @@ internal static class DemoPayload
 
             if (pace > 0)
             {
-                var ahead = stepsThisSegment / pace - clock.Elapsed.TotalSeconds;
+                var ahead = stepsThisLeg / pace - clock.Elapsed.TotalSeconds;
                 if (ahead > 0.002)
                 {
                     Thread.Sleep(TimeSpan.FromSeconds(ahead));

@@ -8,7 +8,7 @@ namespace Campaign.Core.Configuration;
 /// <summary>
 /// Reads a run-log file (CSV). Required columns: run_id, q, chi1z, chi2z, omega0, level, cores, cluster,
 /// wall_hours, outcome (chi1x, chi1y, chi2x, chi2y may be omitted for aligned runs). Optional: core_hours,
-/// t_end, orbits, segments, checkpoint_gb, output_gb, started, finished (ISO 8601). Other columns are ignored.
+/// t_end, orbits, legs, checkpoint_gb, output_gb, started, finished (ISO 8601). Other columns are ignored.
 /// Every problem in every row is reported as "file:line:column: column = value: expected ..."; nothing is
 /// returned unless the whole file is valid.
 /// </summary>
@@ -82,7 +82,7 @@ public static class RunLogReader
             var coreHours = Positive(cells, "core_hours", 1e12);
             var tEnd = Positive(cells, "t_end", 1e9);
             var orbits = Positive(cells, "orbits", 1e5);
-            var segments = Bounded(cells, "segments", cells.Integer("segments"), 1, 1_000_000, required: false);
+            var legs = Bounded(cells, "legs", cells.Integer("legs"), 1, 1_000_000, required: false);
             var checkpoint = Positive(cells, "checkpoint_gb", 1e7);
             var output = Positive(cells, "output_gb", 1e9);
             var started = Timestamp(cells, "started");
@@ -98,7 +98,7 @@ public static class RunLogReader
             }
 
             var log = new RunLog(id, draft.BuildConfiguration(settings), (int)level!.Value, (int)cores!.Value, machine, wall!.Value, outcome!.Value,
-                coreHours, tEnd, orbits, segments is null ? null : (int)segments.Value, checkpoint, output, started, finished);
+                coreHours, tEnd, orbits, legs is null ? null : (int)legs.Value, checkpoint, output, started, finished);
             logs.Add(new RunLogRow(row.Line, log, extraColumns.ToDictionary(c => c, c => cells.Text(c) ?? "")));
         }
 
@@ -114,7 +114,7 @@ public static class RunLogReader
     public static readonly string[] KnownColumns =
     {
         "run_id", "q", "chi1x", "chi1y", "chi1z", "chi2x", "chi2y", "chi2z", "omega0", "level", "cores", "cluster", "wall_hours",
-        "outcome", "core_hours", "t_end", "orbits", "segments", "checkpoint_gb", "output_gb", "started", "finished",
+        "outcome", "core_hours", "t_end", "orbits", "legs", "checkpoint_gb", "output_gb", "started", "finished",
     };
 
     private static RunOutcome? Wrong(RowCells cells, string column, string value)

@@ -181,7 +181,7 @@ public static class WorkspaceConfigReader
 
         var f = new TomlFields(table, source, problems);
         f.RejectUnknown(
-            "runs_folder", "script", "segment_minutes", "warning_signal", "warning_seconds", "checkpoint_pattern", "checkpoint_marker",
+            "runs_folder", "script", "leg_minutes", "warning_signal", "warning_seconds", "checkpoint_pattern", "checkpoint_marker",
             "checkpoint_settle_seconds", "checkpoint_checksum", "progress_file", "progress_regex", "done_marker", "retry_limit",
             "failures_without_progress", "stall_minutes", "growth_window", "growth_rate_limit", "reserve_core_hours", "prequeue",
             "notify_command", "reconcile_seconds");
@@ -189,7 +189,7 @@ public static class WorkspaceConfigReader
         {
             RunsFolder = f.String("runs_folder", false) ?? settings.RunsFolder,
             Script = f.String("script", false) ?? settings.Script,
-            SegmentMinutes = f.FiniteNumber("segment_minutes") ?? settings.SegmentMinutes,
+            LegMinutes = f.FiniteNumber("leg_minutes") ?? settings.LegMinutes,
             WarningSignal = f.String("warning_signal", false) ?? settings.WarningSignal,
             WarningSeconds = (int)(f.Integer("warning_seconds", false, 0, 86_400) ?? settings.WarningSeconds),
             CheckpointPattern = f.String("checkpoint_pattern", false) ?? settings.CheckpointPattern,

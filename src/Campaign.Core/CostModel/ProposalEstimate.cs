@@ -12,7 +12,7 @@ namespace Campaign.Core.CostModel;
 /// <param name="Low">Lower end of the interval.</param>
 /// <param name="High">Upper end of the interval.</param>
 /// <param name="WallHours">Wall-clock hours at its cores (median).</param>
-/// <param name="Segments">Chained jobs needed under the wall-time limit less the checkpoint margin (median).</param>
+/// <param name="Legs">Chained jobs needed under the wall-time limit less the checkpoint margin (median).</param>
 /// <param name="NodeHours">Wall hours x nodes (median).</param>
 /// <param name="ChargedCoreHours">Core-hours the site charges under its policy (median).</param>
 /// <param name="ChargedHigh">Charged core-hours at the upper end of the interval.</param>
@@ -35,7 +35,7 @@ public sealed record EstimateRow(
     double Low,
     double High,
     double WallHours,
-    int Segments,
+    int Legs,
     double NodeHours,
     double ChargedCoreHours,
     double ChargedHigh,

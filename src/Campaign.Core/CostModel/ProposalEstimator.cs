@@ -7,7 +7,7 @@ namespace Campaign.Core.CostModel;
 
 /// <summary>
 /// Turns candidates into proposal numbers: for each configuration and level the predicted core-hours with their
-/// interval, wall hours, job segments, node-hours, charged core-hours and storage; and totals whose interval is
+/// interval, wall hours, job legs, node-hours, charged core-hours and storage; and totals whose interval is
 /// computed by Monte Carlo, because the runs share the model's parameter uncertainty: each draw takes one
 /// coefficient vector b ~ N(b_hat, s^2 (X'WX + P)^-1) for all runs and an independent residual N(0, s^2) per run.
 /// </summary>
@@ -114,7 +114,7 @@ public static class ProposalEstimator
         var cores = c.Spec.Cores;
         var wall = median / cores;
         var usable = machine.WallLimitHours - options.CheckpointMarginHours;
-        var segments = runs * (int)Math.Max(1, Math.Ceiling(wall / runs / usable - 1e-12));
+        var legs = runs * (int)Math.Max(1, Math.Ceiling(wall / runs / usable - 1e-12));
         var nodeHours = wall * machine.NodesFor(cores);
         return new EstimateRow(
             c.Id,
@@ -128,7 +128,7 @@ public static class ProposalEstimator
             low,
             high,
             wall,
-            segments,
+            legs,
             nodeHours,
             machine.ChargedCoreHours(cores, wall),
             machine.ChargedCoreHours(cores, high / cores),

@@ -19,12 +19,12 @@ public enum RunOutcome
 /// <param name="Level">Resolution level.</param>
 /// <param name="Cores">Cores per job.</param>
 /// <param name="Machine">Machine it ran on.</param>
-/// <param name="WallHours">Total wall-clock hours over all its segments.</param>
+/// <param name="WallHours">Total wall-clock hours over all its legs.</param>
 /// <param name="Outcome">How it ended.</param>
 /// <param name="CoreHours">Charged core-hours, when known.</param>
 /// <param name="TEnd">Simulated length reached (M), when known.</param>
 /// <param name="Orbits">Orbits simulated, when known.</param>
-/// <param name="Segments">Number of job segments, when known.</param>
+/// <param name="Legs">Number of job legs, when known.</param>
 /// <param name="CheckpointGb">Size of one checkpoint (GB), when known.</param>
 /// <param name="OutputGb">Total output kept (GB), when known.</param>
 /// <param name="Started">Start time, when known.</param>
@@ -40,7 +40,7 @@ public sealed record RunLog(
     double? CoreHours = null,
     double? TEnd = null,
     double? Orbits = null,
-    int? Segments = null,
+    int? Legs = null,
     double? CheckpointGb = null,
     double? OutputGb = null,
     DateTimeOffset? Started = null,

@@ -6,10 +6,10 @@ namespace Campaign.Core.Forecast;
 /// <summary>
 /// A seeded Monte Carlo discrete-event simulation of the rest of a campaign. Each replica draws one coefficient
 /// vector of the cost model for all runs (shared parameter uncertainty) and a residual per run; each run's
-/// remaining wall time is split into segments by its machine's wall-time limit (less the checkpoint margin);
-/// every segment waits in its machine's queue (a log-normal wait with the profile's median and 90th
-/// percentile), within the limits on jobs queued and running; a segment fails with the learned probability,
-/// losing its work; a segment is started only within the allocation's period (not before it starts, not after
+/// remaining wall time is split into legs by its machine's wall-time limit (less the checkpoint margin);
+/// every leg waits in its machine's queue (a log-normal wait with the profile's median and 90th
+/// percentile), within the limits on jobs queued and running; a leg fails with the learned probability,
+/// losing its work; a leg is started only within the allocation's period (not before it starts, not after
 /// it ends) and while the allocation can still cover its worst case (as the tracker's budget guard does).
 /// See docs/forecast.md.
 /// </summary>
@@ -28,7 +28,7 @@ public static class CampaignForecaster
         var replicas = options.Replicas;
         var n = runs.Count;
         var finish = new double[replicas, n];
-        var segments = new double[n];
+        var legs = new double[n];
         var windows = machines.Values
             .Where(m => m.Allocation is not null)
             .SelectMany(m => WindowsOf(m))
@@ -39,7 +39,7 @@ public static class CampaignForecaster
         var sampler = model is null ? null : new CoefficientSampler(model);
 
         var byMachine = Enumerable.Range(0, n).GroupBy(i => runs[i].Machine).OrderBy(g => g.Key, StringComparer.Ordinal).Select(g => g.ToArray()).ToList();
-        var segmentCounts = new int[replicas, n];
+        var legCounts = new int[replicas, n];
 
         // Replicas are independent: each has its own generator, seeded from the seed and its index, so the
         // result does not depend on how they are spread over threads.
@@ -75,7 +75,7 @@ public static class CampaignForecaster
             foreach (var group in byMachine)
             {
                 var machine = machines[runs[group[0]].Machine];
-                allFit &= SimulateMachine(group, runs, machine, remaining, start, options, random, r, finish, segmentCounts, windows, windowCharge);
+                allFit &= SimulateMachine(group, runs, machine, remaining, start, options, random, r, finish, legCounts, windows, windowCharge);
             }
 
             if (allFit)
@@ -94,7 +94,7 @@ public static class CampaignForecaster
         {
             for (var r = 0; r < replicas; r++)
             {
-                segments[i] += segmentCounts[r, i];
+                legs[i] += legCounts[r, i];
             }
         }
 
@@ -122,7 +122,7 @@ public static class CampaignForecaster
             var machine = machines[runs[i].Machine];
             var end = machine.Allocation is { } a ? Hours(start, a.End.ToDateTime(TimeOnly.MaxValue, DateTimeKind.Utc)) : double.PositiveInfinity;
             var late = times.Count(t => t > end) / (double)replicas;
-            runForecasts.Add(new RunForecast(runs[i].Id, runs[i].Machine, Quantiles(times, start), late, segments[i] / replicas));
+            runForecasts.Add(new RunForecast(runs[i].Id, runs[i].Machine, Quantiles(times, start), late, legs[i] / replicas));
         }
 
         var windowForecasts = windows.Select((w, k) =>
@@ -154,7 +154,7 @@ public static class CampaignForecaster
 
     /// <summary>One machine in one replica; returns true when every run on it finished within its allocation.</summary>
     private static bool SimulateMachine(int[] runIndices, IReadOnlyList<ForecastRun> runs, ForecastMachine machine, double[] remaining, DateTimeOffset start,
-        ForecastOptions options, Random random, int replica, double[,] finish, int[,] segmentCount, IReadOnlyList<Window> windows, double[,] windowCharge)
+        ForecastOptions options, Random random, int replica, double[,] finish, int[,] legCount, IReadOnlyList<Window> windows, double[,] windowCharge)
     {
         var profile = machine.Profile;
         var usable = Math.Max(profile.WallLimitHours - options.CheckpointMarginHours, profile.WallLimitHours / 2);
@@ -169,14 +169,14 @@ public static class CampaignForecaster
         double Wait() => waitMedian <= 0 ? 0 : waitMedian * Math.Exp(sigma * Normal.Sample(random, 0, 1));
 
         var backlog = new Queue<int>();
-        var firstSegment = new HashSet<int>();
+        var firstLeg = new HashSet<int>();
         foreach (var i in runIndices)
         {
             finish[replica, i] = remaining[i] <= 0 ? 0 : double.PositiveInfinity;
             if (remaining[i] > 0)
             {
                 backlog.Enqueue(i);
-                firstSegment.Add(i);
+                firstLeg.Add(i);
             }
         }
 
@@ -185,7 +185,7 @@ public static class CampaignForecaster
         var submitted = 0;
         var free = profile.MaxJobsRunning;
         var charged = 0.0;
-        var committed = 0.0; // worst cases of the running segments, as the tracker's budget guard counts them
+        var committed = 0.0; // worst cases of the running legs, as the tracker's budget guard counts them
         var now = 0.0;
         var allFinished = true;
 
@@ -195,7 +195,7 @@ public static class CampaignForecaster
             {
                 var i = backlog.Dequeue();
                 submitted++;
-                var wait = firstSegment.Remove(i) && runs[i].Active ? 0 : Wait();
+                var wait = firstLeg.Remove(i) && runs[i].Active ? 0 : Wait();
                 eligible.Enqueue(i, now + wait);
             }
         }
@@ -223,8 +223,8 @@ public static class CampaignForecaster
 
                 if (myWindows.Length > 0 && allocation is not null && allocation.Windows.Count > 0)
                 {
-                    // Use-it-or-lose-it windows: like the tracker's guard, a segment starts only while the window it
-                    // starts in has room for its worst case (charges counted in the window where segments end).
+                    // Use-it-or-lose-it windows: like the tracker's guard, a leg starts only while the window it
+                    // starts in has room for its worst case (charges counted in the window where legs end).
                     var k = Array.FindIndex(windowHours, w => w.Start <= now && now <= w.End);
                     if (k < 0 || windowCharge[myWindows[k], replica] + committed + worst > windows[myWindows[k]].Amount)
                     {
@@ -244,11 +244,11 @@ public static class CampaignForecaster
                     }
                 }
 
-                var failed = random.NextDouble() < options.SegmentFailureProbability;
+                var failed = random.NextDouble() < options.LegFailureProbability;
                 var elapsed = failed ? length * random.NextDouble() : length;
                 free--;
                 committed += worst;
-                segmentCount[replica, i]++;
+                legCount[replica, i]++;
                 running.Enqueue((i, length, failed, now), now + elapsed);
             }
             else

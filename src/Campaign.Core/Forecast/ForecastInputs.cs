@@ -10,7 +10,7 @@ namespace Campaign.Core.Forecast;
 /// <param name="LogOffset">Added to x'b: minus ln(machine speed).</param>
 /// <param name="GivenCoreHours">Its consumed core-hours when no model applies.</param>
 /// <param name="DoneFraction">Fraction of its simulated length already done (0 for a planned run).</param>
-/// <param name="Active">True when a segment of it is queued or running now (its first segment needs no new submission wait).</param>
+/// <param name="Active">True when a leg of it is queued or running now (its first leg needs no new submission wait).</param>
 public sealed record ForecastRun(string Id, string Machine, int Cores, double[]? FeatureRow, double LogOffset, double? GivenCoreHours, double DoneFraction, bool Active);
 
 /// <summary>A machine as the forecast sees it: its queue and its allocation.</summary>
@@ -47,9 +47,9 @@ public sealed record ForecastOptions
     /// <summary>Seed.</summary>
     public int Seed { get; init; } = 1;
 
-    /// <summary>Probability that a segment fails and loses its work since the last checkpoint.</summary>
-    public double SegmentFailureProbability { get; init; } = 0.05;
+    /// <summary>Probability that a leg fails and loses its work since the last checkpoint.</summary>
+    public double LegFailureProbability { get; init; } = 0.05;
 
-    /// <summary>Hours of each segment kept for writing the checkpoint.</summary>
+    /// <summary>Hours of each leg kept for writing the checkpoint.</summary>
     public double CheckpointMarginHours { get; init; } = 0.5;
 }

@@ -8,8 +8,8 @@ public sealed record DateQuantiles(DateTimeOffset? P10, DateTimeOffset? P50, Dat
 /// <param name="Machine">Machine.</param>
 /// <param name="Finish">Finish date percentiles.</param>
 /// <param name="ProbabilityLate">Probability that it finishes after its allocation ends, or never within it.</param>
-/// <param name="MeanSegments">Mean number of segments it still needs (failed ones included).</param>
-public sealed record RunForecast(string Id, string Machine, DateQuantiles Finish, double ProbabilityLate, double MeanSegments);
+/// <param name="MeanLegs">Mean number of legs it still needs (failed ones included).</param>
+public sealed record RunForecast(string Id, string Machine, DateQuantiles Finish, double ProbabilityLate, double MeanLegs);
 
 /// <summary>Charge in one allocation window (or the whole allocation when it has no windows).</summary>
 /// <param name="Machine">Machine.</param>

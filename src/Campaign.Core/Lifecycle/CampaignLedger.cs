@@ -3,15 +3,15 @@ using Campaign.Core.Domain;
 
 namespace Campaign.Core.Lifecycle;
 
-/// <summary>The answer of the budget rule for one segment.</summary>
-/// <param name="Allowed">True when the segment may be submitted.</param>
+/// <summary>The answer of the budget rule for one leg.</summary>
+/// <param name="Allowed">True when the leg may be submitted.</param>
 /// <param name="Why">Why not (empty when allowed).</param>
 public readonly record struct BudgetVerdict(bool Allowed, string Why);
 
 /// <summary>
-/// The campaign's spending against its allocations: what was spent (charged by ended segments, by the day they
-/// ended), what is committed (open segments at their worst case) and what is left, per allocation and window. One
-/// implementation of the rule "spent + committed + the next segment's worst case within the allocation (less the
+/// The campaign's spending against its allocations: what was spent (charged by ended legs, by the day they
+/// ended), what is committed (open legs at their worst case) and what is left, per allocation and window. One
+/// implementation of the rule "spent + committed + the next leg's worst case within the allocation (less the
 /// reserve) and within the current window", used by the reconcile cycle, the forecast and select.
 /// </summary>
 public sealed class CampaignLedger
@@ -21,28 +21,28 @@ public sealed class CampaignLedger
     private readonly ILookup<string, (DateOnly Day, double CoreHours)> _spent;
     private readonly Dictionary<string, double> _committed;
 
-    /// <summary>Builds the ledger from the allocations and every segment's charge.</summary>
-    public CampaignLedger(IReadOnlyList<Allocation> allocations, IReadOnlyDictionary<string, MachineProfile> machines, IEnumerable<SegmentCharge> segments)
+    /// <summary>Builds the ledger from the allocations and every leg's charge.</summary>
+    public CampaignLedger(IReadOnlyList<Allocation> allocations, IReadOnlyDictionary<string, MachineProfile> machines, IEnumerable<LegCharge> legs)
     {
         _allocations = allocations;
         _machines = machines;
-        var list = segments as IReadOnlyCollection<SegmentCharge> ?? segments.ToList();
+        var list = legs as IReadOnlyCollection<LegCharge> ?? legs.ToList();
         _spent = list.Where(s => !s.IsOpen && s.EndedAt is not null)
             .ToLookup(s => s.Machine, s => (DateOnly.FromDateTime(s.EndedAt!.Value.UtcDateTime), s.Charged ?? 0), StringComparer.Ordinal);
         _committed = list.Where(s => s.IsOpen).GroupBy(s => s.Machine, StringComparer.Ordinal).ToDictionary(g => g.Key, g => g.Sum(s => s.WorstCase), StringComparer.Ordinal);
     }
 
-    /// <summary>Charged core-hours of segments on <paramref name="machine"/> that ended between the two days (inclusive).</summary>
+    /// <summary>Charged core-hours of legs on <paramref name="machine"/> that ended between the two days (inclusive).</summary>
     public double Spent(string machine, DateOnly from, DateOnly to) =>
         _spent[machine].Where(c => c.Day >= from && c.Day <= to).Sum(c => c.CoreHours);
 
-    /// <summary>Charged core-hours of every ended segment on <paramref name="machine"/>.</summary>
+    /// <summary>Charged core-hours of every ended leg on <paramref name="machine"/>.</summary>
     public double SpentAll(string machine) => _spent[machine].Sum(c => c.CoreHours);
 
-    /// <summary>Worst-case charge of the open segments on <paramref name="machine"/>.</summary>
+    /// <summary>Worst-case charge of the open legs on <paramref name="machine"/>.</summary>
     public double Committed(string machine) => _committed.GetValueOrDefault(machine);
 
-    /// <summary>Adds a newly submitted segment's worst case to what is committed.</summary>
+    /// <summary>Adds a newly submitted leg's worst case to what is committed.</summary>
     public void Commit(string machine, double worstCase) => _committed[machine] = Committed(machine) + worstCase;
 
     /// <summary>The allocations of <paramref name="machine"/>.</summary>
@@ -65,7 +65,7 @@ public sealed class CampaignLedger
     public double SpentInAllocations(string machine) => AllocationsOf(machine).Sum(SpentIn);
 
     /// <summary>
-    /// The budget rule for a segment that may charge <paramref name="worstCase"/> on <paramref name="machine"/>
+    /// The budget rule for a leg that may charge <paramref name="worstCase"/> on <paramref name="machine"/>
     /// today. A machine without allocations is not guarded (a workstation).
     /// </summary>
     public BudgetVerdict Allows(string machine, double worstCase, DateOnly today, double reserve)
@@ -86,7 +86,7 @@ public sealed class CampaignLedger
         var left = granted - reserve - SpentIn(current) - Committed(machine);
         if (worstCase > left)
         {
-            return new BudgetVerdict(false, $"waiting for budget: the next segment may charge {Show(worstCase)} core-hours; {Show(Math.Max(0, left))} left on {machine} (allocation {Show(granted)}, reserve {Show(reserve)})");
+            return new BudgetVerdict(false, $"waiting for budget: the next leg may charge {Show(worstCase)} core-hours; {Show(Math.Max(0, left))} left on {machine} (allocation {Show(granted)}, reserve {Show(reserve)})");
         }
 
         var window = current.Windows.FirstOrDefault(w => w.Start <= today && today <= w.End);
@@ -96,7 +96,7 @@ public sealed class CampaignLedger
             var windowLeft = amount - Spent(machine, window.Start, window.End) - Committed(machine);
             if (worstCase > windowLeft)
             {
-                return new BudgetVerdict(false, $"waiting for budget: the next segment may charge {Show(worstCase)} core-hours; {Show(Math.Max(0, windowLeft))} left in the window {window.Start.ToString("yyyy-MM-dd", CultureInfo.InvariantCulture)}..{window.End.ToString("yyyy-MM-dd", CultureInfo.InvariantCulture)} on {machine}");
+                return new BudgetVerdict(false, $"waiting for budget: the next leg may charge {Show(worstCase)} core-hours; {Show(Math.Max(0, windowLeft))} left in the window {window.Start.ToString("yyyy-MM-dd", CultureInfo.InvariantCulture)}..{window.End.ToString("yyyy-MM-dd", CultureInfo.InvariantCulture)} on {machine}");
             }
         }
 

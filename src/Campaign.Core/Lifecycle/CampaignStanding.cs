@@ -9,7 +9,7 @@ public enum PlanRunStatus
     /// <summary>Not tracked yet: still to come.</summary>
     ToCome,
 
-    /// <summary>Tracked and being worked on (waiting for its next segment, queued or running).</summary>
+    /// <summary>Tracked and being worked on (waiting for its next leg, queued or running).</summary>
     Active,
 
     /// <summary>Tracked and held for a human.</summary>

@@ -18,7 +18,7 @@ public enum PlanEntryKind
 /// it was when the plan was saved so that nothing is approximated later.
 /// </summary>
 /// <param name="Configuration">The binary's physics.</param>
-/// <param name="Estimate">The estimate row (machine, cores, core-hours with the interval, wall hours, segments, charges, storage).</param>
+/// <param name="Estimate">The estimate row (machine, cores, core-hours with the interval, wall hours, legs, charges, storage).</param>
 /// <param name="Cost">Charged core-hours at the plan's quantile (what the selection charged against the budget).</param>
 /// <param name="TargetLength">Simulated length (M) the run must reach, or null for a row migrated from an older plan (computed at adoption).</param>
 public sealed record PlanEntry(BinaryConfiguration Configuration, EstimateRow Estimate, double Cost, double? TargetLength)

@@ -34,8 +34,8 @@ public sealed record RunRecord(
     public double DoneFraction => TargetLength > 0 ? Math.Clamp(Progress / TargetLength, 0, 1) : 0;
 }
 
-/// <summary>Where a job segment is in its life.</summary>
-public enum SegmentPhase
+/// <summary>Where a job leg is in its life.</summary>
+public enum LegPhase
 {
     /// <summary>Recorded, not yet known to have reached the batch system.</summary>
     Intent,
@@ -47,7 +47,7 @@ public enum SegmentPhase
     Ended,
 }
 
-/// <summary>What a job segment means for the budget.</summary>
+/// <summary>What a job leg means for the budget.</summary>
 /// <param name="RunId">Its run.</param>
 /// <param name="Machine">The machine it is charged on.</param>
 /// <param name="Phase">Intent, submitted or ended.</param>
@@ -56,10 +56,10 @@ public enum SegmentPhase
 /// <param name="SubmittedAt">When it was submitted.</param>
 /// <param name="StartedAt">When it was first seen running.</param>
 /// <param name="EndedAt">When it ended.</param>
-public sealed record SegmentCharge(string RunId, string Machine, SegmentPhase Phase, double WorstCase, double? Charged, DateTimeOffset SubmittedAt, DateTimeOffset? StartedAt, DateTimeOffset? EndedAt)
+public sealed record LegCharge(string RunId, string Machine, LegPhase Phase, double WorstCase, double? Charged, DateTimeOffset SubmittedAt, DateTimeOffset? StartedAt, DateTimeOffset? EndedAt)
 {
     /// <summary>True until it has ended.</summary>
-    public bool IsOpen => Phase != SegmentPhase.Ended;
+    public bool IsOpen => Phase != LegPhase.Ended;
 }
 
 /// <summary>One state change of a run, as the event log keeps it.</summary>

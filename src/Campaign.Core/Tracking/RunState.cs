@@ -3,16 +3,16 @@ namespace Campaign.Core.Tracking;
 /// <summary>States of a tracked run (one configuration at one level). Diagram in docs/tracking.md.</summary>
 public enum RunState
 {
-    /// <summary>Needs its next segment (or its first).</summary>
+    /// <summary>Needs its next leg (or its first).</summary>
     Planned,
 
-    /// <summary>Needs its next segment, but the allocation cannot cover its worst case yet.</summary>
+    /// <summary>Needs its next leg, but the allocation cannot cover its worst case yet.</summary>
     WaitingBudget,
 
-    /// <summary>A segment is submitted and waiting in the queue.</summary>
+    /// <summary>A leg is submitted and waiting in the queue.</summary>
     Queued,
 
-    /// <summary>A segment is running.</summary>
+    /// <summary>A leg is running.</summary>
     Running,
 
     /// <summary>Reached its target length (or its done marker): done.</summary>

@@ -16,7 +16,7 @@ public sealed record RunTransition(string RunId, RunState? From, RunState To, st
 }
 
 /// <summary>
-/// A tracked run: one configuration at one level (or a rehearsal of it), evolved by a chain of job segments. Its
+/// A tracked run: one configuration at one level (or a rehearsal of it), evolved by a chain of job legs. Its
 /// state and counters change only through its methods; each returns the transition it causes, which the caller
 /// stores in the same transaction as the run.
 /// </summary>
@@ -62,7 +62,7 @@ public sealed class TrackedRun
     /// <summary>The binary's physics.</summary>
     public BinaryConfiguration Configuration { get; }
 
-    /// <summary>Order in which runs get their segments.</summary>
+    /// <summary>Order in which runs get their legs.</summary>
     public long Position { get; }
 
     /// <summary>A rehearsal: its own kind of run (never a plan run done, never a run log).</summary>
@@ -77,22 +77,22 @@ public sealed class TrackedRun
     /// <summary>Why it is held, waiting or failed (empty otherwise).</summary>
     public string Reason { get; private set; } = "";
 
-    /// <summary>Failed segments in a row that still made progress.</summary>
+    /// <summary>Failed legs in a row that still made progress.</summary>
     public int FailuresWithProgress { get; private set; }
 
-    /// <summary>Failed segments in a row without progress.</summary>
+    /// <summary>Failed legs in a row without progress.</summary>
     public int FailuresWithoutProgress { get; private set; }
 
     /// <summary>Restarts after a stall (at most one before a hold).</summary>
     public int StallRestarts { get; private set; }
 
-    /// <summary>Segments in a row that the warning ended before any progress.</summary>
-    public int ShortSegments { get; private set; }
+    /// <summary>Legs in a row that the warning ended before any progress.</summary>
+    public int ShortLegs { get; private set; }
 
     /// <summary>Simulated time reached (M).</summary>
     public double Progress { get; private set; }
 
-    /// <summary>When progress last moved (or its segment started running): the stall clock.</summary>
+    /// <summary>When progress last moved (or its leg started running): the stall clock.</summary>
     public DateTimeOffset? ProgressAt { get; private set; }
 
     /// <summary>The latest constraint norm reported.</summary>
@@ -117,7 +117,7 @@ public sealed class TrackedRun
     /// <summary>A run as stored (the store's mapping; no transition).</summary>
     public static TrackedRun Restore(
         string runId, string configId, int level, string machine, int cores, string folder, double targetLength, BinaryConfiguration configuration, long position, bool rehearsal, DateTimeOffset createdAt,
-        RunState state, string reason, int failuresWithProgress, int failuresWithoutProgress, int stallRestarts, int shortSegments, double progress, DateTimeOffset? progressAt, double? norm, string? checkpoint,
+        RunState state, string reason, int failuresWithProgress, int failuresWithoutProgress, int stallRestarts, int shortLegs, double progress, DateTimeOffset? progressAt, double? norm, string? checkpoint,
         DateTimeOffset updatedAt, DateTimeOffset? finishedAt) =>
         new(runId, configId, level, machine, cores, folder, targetLength, configuration, position, rehearsal, createdAt)
         {
@@ -126,7 +126,7 @@ public sealed class TrackedRun
             FailuresWithProgress = failuresWithProgress,
             FailuresWithoutProgress = failuresWithoutProgress,
             StallRestarts = stallRestarts,
-            ShortSegments = shortSegments,
+            ShortLegs = shortLegs,
             Progress = progress,
             ProgressAt = progressAt,
             Norm = norm,
@@ -141,12 +141,12 @@ public sealed class TrackedRun
     /// <summary>The read-only view the rest of the campaign uses.</summary>
     public RunRecord ToRecord() => new(RunId, ConfigId, Level, Machine, Cores, Configuration, TargetLength, State, Reason, Rehearsal, Progress, FinishedAt);
 
-    /// <summary>A segment was submitted for it (a pre-queued one keeps the state): queued.</summary>
+    /// <summary>A leg was submitted for it (a pre-queued one keeps the state): queued.</summary>
     public RunTransition Submitting(string why, bool prequeued, DateTimeOffset at) =>
         prequeued ? Note(why, at) : Move(RunState.Queued, "", why, at);
 
-    /// <summary>What the batch system says of its open segment while the segment is alive.</summary>
-    /// <param name="running">True when the segment runs (its queue wait is over).</param>
+    /// <summary>What the batch system says of its open leg while the leg is alive.</summary>
+    /// <param name="running">True when the leg runs (its queue wait is over).</param>
     /// <param name="startedNow">True when it was not seen running before: the stall clock starts.</param>
     /// <param name="why">What was seen.</param>
     /// <param name="at">Now.</param>
@@ -172,7 +172,7 @@ public sealed class TrackedRun
     /// <summary>Held for a human, with the reason; <paramref name="detail"/> goes to the event when it says more.</summary>
     public RunTransition Hold(string reason, DateTimeOffset at, string? detail = null) => Move(RunState.Held, reason, detail ?? reason, at);
 
-    /// <summary>Released by a human: needs its next segment again, with its counters reset.</summary>
+    /// <summary>Released by a human: needs its next leg again, with its counters reset.</summary>
     public RunTransition Release(DateTimeOffset at)
     {
         if (State != RunState.Held)
@@ -214,27 +214,27 @@ public sealed class TrackedRun
     }
 
     /// <summary>No progress for too long: cancelled to restart once (a note: the state stays).</summary>
-    public RunTransition StalledOnce(string stalled, int segment, DateTimeOffset at)
+    public RunTransition StalledOnce(string stalled, int leg, DateTimeOffset at)
     {
         StallRestarts = 1;
         Reason = stalled + ": cancelled to restart once";
-        return Note(stalled + "; cancelling segment " + segment.ToString(System.Globalization.CultureInfo.InvariantCulture) + " to restart once", at);
+        return Note(stalled + "; cancelling leg " + leg.ToString(System.Globalization.CultureInfo.InvariantCulture) + " to restart once", at);
     }
 
     /// <summary>
-    /// One of its segments ended: decides finish, continue or hold by the restart rules, with the progress read
-    /// from its folder; a segment the warning signal ended before any progress is too short, not a failure.
+    /// One of its legs ended: decides finish, continue or hold by the restart rules, with the progress read
+    /// from its folder; a leg the warning signal ended before any progress is too short, not a failure.
     /// </summary>
-    /// <param name="ending">How the segment ended ("completed", "timed_out", "failed", "too_short" ...).</param>
-    /// <param name="startT">Simulated time when the segment was submitted.</param>
+    /// <param name="ending">How the leg ended ("succeeded", "out_of_time", "crashed", "too_short" ...).</param>
+    /// <param name="startT">Simulated time when the leg was submitted.</param>
     /// <param name="latest">Simulated time reached now.</param>
     /// <param name="doneMarker">True when the run's done marker exists.</param>
-    /// <param name="othersOpen">True when another segment of it is still open (pre-queued).</param>
-    /// <param name="describe">What ended, for the event ("segment 3 (job 42) ended TIMEOUT").</param>
+    /// <param name="othersOpen">True when another leg of it is still open (pre-queued).</param>
+    /// <param name="describe">What ended, for the event ("leg 3 (job 42) ended TIMEOUT").</param>
     /// <param name="settings">The restart rules' limits.</param>
     /// <param name="at">Now.</param>
     /// <param name="goneBad">Why its output shows it has gone bad (held, never finished), or null.</param>
-    public (NextStep Step, RunTransition Transition) EndSegment(string ending, double startT, double latest, bool doneMarker, bool othersOpen, string describe, TrackingSettings settings, DateTimeOffset at, string? goneBad = null)
+    public (NextStep Step, RunTransition Transition) EndLeg(string ending, double startT, double latest, bool doneMarker, bool othersOpen, string describe, TrackingSettings settings, DateTimeOffset at, string? goneBad = null)
     {
         Progress = Math.Max(Progress, latest);
         if (!State.IsActive())
@@ -242,11 +242,11 @@ public sealed class TrackedRun
             return (NextStep.Continue, Note(describe, at));
         }
 
-        var end = new SegmentEnd(ending, startT, Progress, TargetLength, doneMarker, FailuresWithProgress, FailuresWithoutProgress, ShortSegments, goneBad);
-        var (step, why, withProgress, without) = SegmentDecision.Decide(end, settings);
+        var end = new LegEnd(ending, startT, Progress, TargetLength, doneMarker, FailuresWithProgress, FailuresWithoutProgress, ShortLegs, goneBad);
+        var (step, why, withProgress, without) = LegDecision.Decide(end, settings);
         FailuresWithProgress = withProgress;
         FailuresWithoutProgress = without;
-        ShortSegments = ending == "too_short" && step != NextStep.Finish ? ShortSegments + 1 : 0;
+        ShortLegs = ending == "too_short" && step != NextStep.Finish ? ShortLegs + 1 : 0;
         var text = $"{describe}: {why}";
         switch (step)
         {
@@ -260,7 +260,7 @@ public sealed class TrackedRun
         }
     }
 
-    /// <summary>The checkpoint the next segment restarts from.</summary>
+    /// <summary>The checkpoint the next leg restarts from.</summary>
     public void UseCheckpoint(string? path) => Checkpoint = path ?? Checkpoint;
 
     private void ResetCounters()
@@ -268,7 +268,7 @@ public sealed class TrackedRun
         FailuresWithProgress = 0;
         FailuresWithoutProgress = 0;
         StallRestarts = 0;
-        ShortSegments = 0;
+        ShortLegs = 0;
     }
 
     private RunTransition Note(string why, DateTimeOffset at)

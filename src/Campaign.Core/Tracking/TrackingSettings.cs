@@ -11,11 +11,11 @@ public sealed record TrackingSettings
     /// <summary>Folder holding one sub-folder per run.</summary>
     public string RunsFolder { get; init; } = "runs";
 
-    /// <summary>The batch script run for every segment (relative to the workspace).</summary>
-    public string Script { get; init; } = "run-segment.sh";
+    /// <summary>The batch script run for every leg (relative to the workspace).</summary>
+    public string Script { get; init; } = "run-leg.sh";
 
-    /// <summary>Wall time asked for each segment, in minutes; null: the machine's wall-time limit.</summary>
-    public double? SegmentMinutes { get; init; }
+    /// <summary>Wall time asked for each leg, in minutes; null: the machine's wall-time limit.</summary>
+    public double? LegMinutes { get; init; }
 
     /// <summary>Warning signal sent before the limit so the job can checkpoint (empty: none).</summary>
     public string WarningSignal { get; init; } = "USR1";
@@ -38,7 +38,7 @@ public sealed record TrackingSettings
     /// <summary>Progress file under the run folder: lines "t [norm]" (t in M).</summary>
     public string ProgressFile { get; init; } = "progress.dat";
 
-    /// <summary>Instead of the progress file: a regular expression over the segment's output with named groups t and (optionally) norm.</summary>
+    /// <summary>Instead of the progress file: a regular expression over the leg's output with named groups t and (optionally) norm.</summary>
     public string ProgressRegex { get; init; } = "";
 
     /// <summary>A file under the run folder whose presence says the run has finished.</summary>
@@ -62,7 +62,7 @@ public sealed record TrackingSettings
     /// <summary>Core-hours of each allocation kept back (never planned into).</summary>
     public double ReserveCoreHours { get; init; }
 
-    /// <summary>Pre-queue the next segment with an afterany dependency while one runs.</summary>
+    /// <summary>Pre-queue the next leg with an afterany dependency while one runs.</summary>
     public bool Prequeue { get; init; }
 
     /// <summary>Command (argument list) run with each event as JSON on standard input; empty: none.</summary>
@@ -75,9 +75,9 @@ public sealed record TrackingSettings
     public IReadOnlyList<FieldProblem> Validate()
     {
         var checks = new FieldChecks();
-        if (SegmentMinutes is { } minutes)
+        if (LegMinutes is { } minutes)
         {
-            checks.InRange("segment_minutes", minutes, 0.02, 100_000);
+            checks.InRange("leg_minutes", minutes, 0.02, 100_000);
         }
 
         checks.InRange("warning_seconds", WarningSeconds, 0, 86_400);

@@ -251,6 +251,50 @@ public static class Migrations
             INSERT INTO workspace_info (key, value) VALUES ('workspace_id', lower(hex(randomblob(4))))
             ON CONFLICT (key) DO NOTHING;
             """),
+        new Migration(9, "our own words: legs, resolution labels in run ids, our job states", """
+            PRAGMA defer_foreign_keys = ON;
+
+            -- One job in a run's chain is a leg.
+            ALTER TABLE segments RENAME TO legs;
+            DROP INDEX segments_open;
+            CREATE INDEX legs_open ON legs (phase, run_id);
+            ALTER TABLE tracked_runs RENAME COLUMN short_segments TO short_legs;
+            ALTER TABLE plan_entries RENAME COLUMN segments TO legs;
+            ALTER TABLE run_logs RENAME COLUMN segments TO legs;
+
+            -- Run ids carry ".resN" for the resolution. The former id is kept: jobs given to a batch system before
+            -- the upgrade carry it in their names, and a look-up by name must still find them (nothing submitted twice).
+            ALTER TABLE tracked_runs ADD COLUMN former_id TEXT;
+            CREATE TEMP TABLE renamed AS
+                SELECT run_id AS old_id,
+                       config_id || '.res' || level || substr(run_id, length(config_id || '.L' || level) + 1) AS new_id
+                FROM tracked_runs
+                WHERE substr(run_id, 1, length(config_id || '.L' || level)) = config_id || '.L' || level
+                  AND (length(run_id) = length(config_id || '.L' || level)
+                       OR substr(run_id, length(config_id || '.L' || level) + 1, 1) = '.');
+            UPDATE tracked_runs SET former_id = run_id, run_id = (SELECT new_id FROM renamed WHERE old_id = tracked_runs.run_id)
+                WHERE run_id IN (SELECT old_id FROM renamed);
+            UPDATE legs SET run_id = (SELECT new_id FROM renamed WHERE old_id = legs.run_id) WHERE run_id IN (SELECT old_id FROM renamed);
+            UPDATE run_events SET run_id = (SELECT new_id FROM renamed WHERE old_id = run_events.run_id) WHERE run_id IN (SELECT old_id FROM renamed);
+            UPDATE run_logs SET run_id = (SELECT new_id FROM renamed WHERE old_id = run_logs.run_id)
+                WHERE source = 'campaign tracking' AND run_id IN (SELECT old_id FROM renamed)
+                  AND NOT EXISTS (SELECT 1 FROM run_logs o WHERE o.run_id = (SELECT new_id FROM renamed WHERE old_id = run_logs.run_id));
+            DROP TABLE renamed;
+
+            -- Campaign's own job states (the batch system's own word stays in native_state).
+            UPDATE legs SET job_state = CASE job_state
+                WHEN 'Pending' THEN 'waiting' WHEN 'Requeued' THEN 'waiting'
+                WHEN 'Running' THEN 'working' WHEN 'Finishing' THEN 'working'
+                WHEN 'Suspended' THEN 'paused'
+                WHEN 'Completed' THEN 'succeeded'
+                WHEN 'TimedOut' THEN 'out_of_time'
+                WHEN 'Failed' THEN 'crashed' WHEN 'OutOfMemory' THEN 'crashed' WHEN 'LaunchFailed' THEN 'crashed' WHEN 'DeadlineMissed' THEN 'crashed'
+                WHEN 'NodeFailed' THEN 'interrupted' WHEN 'Preempted' THEN 'interrupted'
+                WHEN 'Cancelled' THEN 'stopped'
+                WHEN 'Unknown' THEN 'unrecognised'
+                WHEN 'Missing' THEN 'vanished'
+                ELSE job_state END;
+            """),
     };
 
     /// <summary>Schema version this build writes.</summary>

@@ -66,8 +66,8 @@ internal sealed class CycleContext
 
     public RunFolder Folder(TrackedRun run) => new(Path.Combine(Workspace.Root, run.Folder), Settings);
 
-    /// <summary>The segments not yet ended, read now.</summary>
-    public IReadOnlyList<JobSegment> OpenSegments() => TrackingStore.Segments(Db).Where(s => s.IsOpen).ToList();
+    /// <summary>The legs not yet ended, read now.</summary>
+    public IReadOnlyList<JobLeg> OpenLegs() => TrackingStore.Legs(Db).Where(s => s.IsOpen).ToList();
 
     /// <summary>One transaction around <paramref name="write"/>.</summary>
     public void Commit(Action<SqliteTransaction> write)
@@ -115,11 +115,11 @@ internal sealed class CycleContext
         }
     }
 
-    /// <summary>Records why a segment is cancelled, then asks its batch system.</summary>
-    public async Task Cancel(TrackedRun run, JobSegment segment, string reason, CancellationToken cancellationToken)
+    /// <summary>Records why a leg is cancelled, then asks its batch system.</summary>
+    public async Task Cancel(TrackedRun run, JobLeg leg, string reason, CancellationToken cancellationToken)
     {
-        segment.CancelFor(reason);
-        Commit(tx => TrackingStore.Save(Db, tx, segment));
-        await Batch(run.Machine).CancelAsync(segment.JobId!, cancellationToken).ConfigureAwait(false);
+        leg.CancelFor(reason);
+        Commit(tx => TrackingStore.Save(Db, tx, leg));
+        await Batch(run.Machine).CancelAsync(leg.JobId!, cancellationToken).ConfigureAwait(false);
     }
 }

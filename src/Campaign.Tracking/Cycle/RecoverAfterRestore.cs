@@ -5,10 +5,10 @@ using Campaign.Store;
 namespace Campaign.Tracking.Cycle;
 
 /// <summary>
-/// Step 0, once after a backup is restored: the workspace may have submitted segments after the backup was taken,
+/// Step 0, once after a backup is restored: the workspace may have submitted legs after the backup was taken,
 /// and the restored database does not know them. Before anything is submitted, each unfinished run's next job
-/// names (segment n + 1, n + 2, ...) are looked up in its machine's queue; every job found is ours (the name
-/// carries the workspace id) and is recorded as a submitted segment, so it is observed, charged and never
+/// names (leg n + 1, n + 2, ...) are looked up in its machine's queue; every job found is ours (the name
+/// carries the workspace id) and is recorded as a submitted leg, so it is observed, charged and never
 /// submitted twice. A machine that cannot be asked keeps the look-up pending for the next cycle.
 /// </summary>
 internal static class RecoverAfterRestore
@@ -23,8 +23,9 @@ internal static class RecoverAfterRestore
             return;
         }
 
-        var segments = TrackingStore.Segments(c.Db);
-        var last = segments.GroupBy(s => s.RunId, StringComparer.Ordinal).ToDictionary(g => g.Key, g => g.Max(s => s.Number), StringComparer.Ordinal);
+        var legs = TrackingStore.Legs(c.Db);
+        var former = TrackingStore.FormerIds(c.Db);
+        var last = legs.GroupBy(s => s.RunId, StringComparer.Ordinal).ToDictionary(g => g.Key, g => g.Max(s => s.Number), StringComparer.Ordinal);
         var found = 0;
         foreach (var run in c.Runs.Values.Where(r => r.State is not (RunState.Finished or RunState.Failed)).OrderBy(r => r.Position))
         {
@@ -34,23 +35,41 @@ internal static class RecoverAfterRestore
             }
 
             var profile = c.Workspace.Machine(run.Machine);
-            var wall = TimeSpan.FromHours(c.Settings.SegmentMinutes is { } minutes ? minutes / 60 : profile.WallLimitHours);
+            var wall = TimeSpan.FromHours(c.Settings.LegMinutes is { } minutes ? minutes / 60 : profile.WallLimitHours);
             for (var number = last.GetValueOrDefault(run.RunId) + 1; number <= last.GetValueOrDefault(run.RunId) + MaximumPerRun; number++)
             {
-                var name = JobName.For(c.Workspace.Id, run.RunId, number);
+                // A job submitted before the upgrade to schema 9 carries the run's former id and leg suffix.
+                var names = former.TryGetValue(run.RunId, out var formerId)
+                    ? new[] { JobName.For(c.Workspace.Id, run.RunId, number), JobName.Former(c.Workspace.Id, formerId, number) }
+                    : new[] { JobName.For(c.Workspace.Id, run.RunId, number) };
                 string? id = null;
-                if (!await c.Guarded(run.Machine, $"looking up {name} after a restore", async () => id = await c.Batch(run.Machine).FindAsync(name, c.Folder(run).Path, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false) || id is null)
+                var name = names[0];
+                foreach (var candidate in names)
+                {
+                    if (!await c.Guarded(run.Machine, $"looking up {candidate} after a restore", async () => id = await c.Batch(run.Machine).FindAsync(candidate, c.Folder(run).Path, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
+                    {
+                        break;
+                    }
+
+                    if (id is not null)
+                    {
+                        name = candidate;
+                        break;
+                    }
+                }
+
+                if (id is null)
                 {
                     break;
                 }
 
-                var segment = new JobSegment(run.RunId, number, name, profile.ChargedCoreHours(run.Cores, wall.TotalHours), wall, run.Progress, "newest at start", c.Now);
-                segment.Submitted(id, "");
+                var leg = new JobLeg(run.RunId, number, name, profile.ChargedCoreHours(run.Cores, wall.TotalHours), wall, run.Progress, "newest at start", c.Now);
+                leg.Submitted(id, "");
                 var jobId = id;
                 c.Commit(tx =>
                 {
-                    TrackingStore.Insert(c.Db, tx, segment);
-                    c.Save(tx, run, run.IntentResolved(true, $"segment {number} found in the batch system as job {jobId} after a restore (submitted after the backup was taken)", c.Now));
+                    TrackingStore.Insert(c.Db, tx, leg);
+                    c.Save(tx, run, run.IntentResolved(true, $"leg {number} found in the batch system as job {jobId} after a restore (submitted after the backup was taken)", c.Now));
                 });
                 found++;
             }

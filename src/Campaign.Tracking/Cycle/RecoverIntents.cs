@@ -4,7 +4,7 @@ using Campaign.Store;
 namespace Campaign.Tracking.Cycle;
 
 /// <summary>
-/// Step 1: segments recorded as intents only (the host stopped between recording one and learning its job id) are
+/// Step 1: legs recorded as intents only (the host stopped between recording one and learning its job id) are
 /// looked up by their job name: found, they are submitted; not found, they never reached the batch system and are
 /// dropped, so the run is submitted again.
 /// </summary>
@@ -12,16 +12,16 @@ internal static class RecoverIntents
 {
     public static async Task RunAsync(CycleContext c, CancellationToken cancellationToken)
     {
-        foreach (var segment in c.OpenSegments().Where(s => s.Phase == Core.Lifecycle.SegmentPhase.Intent))
+        foreach (var leg in c.OpenLegs().Where(s => s.Phase == Core.Lifecycle.LegPhase.Intent))
         {
-            var run = c.Runs[segment.RunId];
+            var run = c.Runs[leg.RunId];
             if (c.Faults.ContainsKey(run.Machine))
             {
                 continue;
             }
 
             string? id = null;
-            if (!await c.Guarded(run.Machine, "looking up an unconfirmed submission", async () => id = await c.Batch(run.Machine).FindAsync(segment.JobName, c.Folder(run).Path, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
+            if (!await c.Guarded(run.Machine, "looking up an unconfirmed submission", async () => id = await c.Batch(run.Machine).FindAsync(leg.JobName, c.Folder(run).Path, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
             {
                 continue;
             }
@@ -31,19 +31,19 @@ internal static class RecoverIntents
             {
                 if (id is not null)
                 {
-                    segment.Submitted(id, segment.JobState);
-                    TrackingStore.Save(c.Db, tx, segment);
-                    c.Save(tx, run, run.IntentResolved(true, $"segment {segment.Number} found in the batch system as job {id} (its submission was not recorded before a stop){(settled ? $"; the run is {run.State.Name()}: cancelling it" : "")}", c.Now));
+                    leg.Submitted(id, leg.JobState);
+                    TrackingStore.Save(c.Db, tx, leg);
+                    c.Save(tx, run, run.IntentResolved(true, $"leg {leg.Number} found in the batch system as job {id} (its submission was not recorded before a stop){(settled ? $"; the run is {run.State.Name()}: cancelling it" : "")}", c.Now));
                 }
                 else
                 {
-                    TrackingStore.DeleteIntent(c.Db, tx, segment.Id);
-                    c.Save(tx, run, run.IntentResolved(false, $"segment {segment.Number} never reached the batch system{(settled ? "" : "; it will be submitted again")}", c.Now));
+                    TrackingStore.DeleteIntent(c.Db, tx, leg.Id);
+                    c.Save(tx, run, run.IntentResolved(false, $"leg {leg.Number} never reached the batch system{(settled ? "" : "; it will be submitted again")}", c.Now));
                 }
             });
             if (id is not null && settled)
             {
-                await c.Guarded(run.Machine, $"cancelling job {id} of {run.State.Name()} run {run.RunId}", () => c.Cancel(run, segment, "superfluous", cancellationToken)).ConfigureAwait(false);
+                await c.Guarded(run.Machine, $"cancelling job {id} of {run.State.Name()} run {run.RunId}", () => c.Cancel(run, leg, "superfluous", cancellationToken)).ConfigureAwait(false);
             }
         }
     }

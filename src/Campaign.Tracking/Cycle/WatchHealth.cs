@@ -7,28 +7,28 @@ namespace Campaign.Tracking.Cycle;
 
 /// <summary>
 /// Step 4: the progress of every running run is read from its folder; a constraint norm that grows steadily holds
-/// the run; no progress for stall_minutes cancels the segment to restart once, and a second stall holds the run.
+/// the run; no progress for stall_minutes cancels the leg to restart once, and a second stall holds the run.
 /// </summary>
 internal static class WatchHealth
 {
     public static async Task RunAsync(CycleContext c, CancellationToken cancellationToken)
     {
-        var running = c.OpenSegments()
-            .Where(s => s.Phase == SegmentPhase.Submitted && s.JobState == JobState.Running.ToString())
+        var running = c.OpenLegs()
+            .Where(s => s.Phase == LegPhase.Submitted && s.JobState == JobState.Working.Name())
             .GroupBy(s => s.RunId, StringComparer.Ordinal)
             .ToDictionary(g => g.Key, g => g.First(), StringComparer.Ordinal);
         foreach (var run in c.Runs.Values.Where(r => r.State == RunState.Running && !c.Faults.ContainsKey(r.Machine)).ToList())
         {
-            if (running.GetValueOrDefault(run.RunId) is not { CancelReason: null } segment)
+            if (running.GetValueOrDefault(run.RunId) is not { CancelReason: null } leg)
             {
                 continue;
             }
 
-            await c.Guarded(run.Machine, $"acting on the health of {run.RunId}", () => Watch(c, run, segment, cancellationToken)).ConfigureAwait(false);
+            await c.Guarded(run.Machine, $"acting on the health of {run.RunId}", () => Watch(c, run, leg, cancellationToken)).ConfigureAwait(false);
         }
     }
 
-    private static async Task Watch(CycleContext c, TrackedRun run, JobSegment segment, CancellationToken cancellationToken)
+    private static async Task Watch(CycleContext c, TrackedRun run, JobLeg leg, CancellationToken cancellationToken)
     {
         var points = c.Folder(run).Progress();
         var now = c.Now;
@@ -40,14 +40,14 @@ internal static class WatchHealth
 
         if (Health.FirstNonFinite(points) is { } bad)
         {
-            await HoldAndCancel(c, run, segment, Health.NonFiniteReason(bad), "bad", cancellationToken).ConfigureAwait(false);
+            await HoldAndCancel(c, run, leg, Health.NonFiniteReason(bad), "bad", cancellationToken).ConfigureAwait(false);
             return;
         }
 
         if (Health.IsGoingBad(points, c.Settings.GrowthWindow, c.Settings.GrowthRateLimit, out var rate))
         {
             var why = $"constraint norm growing steadily: rate {rate.ToString("G3", CultureInfo.InvariantCulture)} per M (doubling every {(Math.Log(2) / rate).ToString("0", CultureInfo.InvariantCulture)} M) over the last {c.Settings.GrowthWindow} reports";
-            await HoldAndCancel(c, run, segment, why, "bad", cancellationToken).ConfigureAwait(false);
+            await HoldAndCancel(c, run, leg, why, "bad", cancellationToken).ConfigureAwait(false);
             return;
         }
 
@@ -60,19 +60,19 @@ internal static class WatchHealth
         var stalled = $"no progress for {since.TotalMinutes.ToString("0.#", CultureInfo.InvariantCulture)} min (t = {run.Progress.ToString("0.#", CultureInfo.InvariantCulture)} M)";
         if (run.StallRestarts == 0)
         {
-            c.Commit(tx => c.Save(tx, run, run.StalledOnce(stalled, segment.Number, now)));
-            await c.Cancel(run, segment, "stall", cancellationToken).ConfigureAwait(false);
+            c.Commit(tx => c.Save(tx, run, run.StalledOnce(stalled, leg.Number, now)));
+            await c.Cancel(run, leg, "stall", cancellationToken).ConfigureAwait(false);
         }
         else
         {
-            await HoldAndCancel(c, run, segment, stalled + " again after a restart", "stall", cancellationToken).ConfigureAwait(false);
+            await HoldAndCancel(c, run, leg, stalled + " again after a restart", "stall", cancellationToken).ConfigureAwait(false);
         }
     }
 
-    private static async Task HoldAndCancel(CycleContext c, TrackedRun run, JobSegment segment, string why, string cancelReason, CancellationToken cancellationToken)
+    private static async Task HoldAndCancel(CycleContext c, TrackedRun run, JobLeg leg, string why, string cancelReason, CancellationToken cancellationToken)
     {
         c.Commit(tx => c.Save(tx, run, run.Hold(why, c.Now)));
         c.Held++;
-        await c.Cancel(run, segment, cancelReason, cancellationToken).ConfigureAwait(false);
+        await c.Cancel(run, leg, cancelReason, cancellationToken).ConfigureAwait(false);
     }
 }

@@ -44,7 +44,7 @@ public sealed class SimulatedMachine : IBatchSystem
     public bool LoseAnswers { get; set; }
 
     /// <summary>Ids of jobs that were cancelled.</summary>
-    public IReadOnlyCollection<string> Cancelled => _jobs.Values.Where(j => j.Final?.State == JobState.Cancelled).Select(j => j.Id).ToList();
+    public IReadOnlyCollection<string> Cancelled => _jobs.Values.Where(j => j.Final?.State == JobState.Stopped).Select(j => j.Id).ToList();
 
     /// <summary>Calls made while down.</summary>
     public int RefusedCalls { get; private set; }
@@ -93,10 +93,10 @@ public sealed class SimulatedMachine : IBatchSystem
     public Task CancelAsync(string jobId, CancellationToken cancellationToken)
     {
         Check();
-        if (_jobs.TryGetValue(jobId, out var job) && Advance(job).State is JobState.Pending or JobState.Running)
+        if (_jobs.TryGetValue(jobId, out var job) && Advance(job).State is JobState.Waiting or JobState.Working)
         {
             var ran = job.Started is { } s ? _clock.GetUtcNow() - s : TimeSpan.Zero;
-            job.Final = new JobStatus(job.Id, JobState.Cancelled, "CANCELLED", 0, 15, ran, job.Request.Cores, job.Request.Name);
+            job.Final = new JobStatus(job.Id, JobState.Stopped, "CANCELLED", 0, 15, ran, job.Request.Cores, job.Request.Name);
         }
 
         return Task.CompletedTask;
@@ -130,9 +130,9 @@ public sealed class SimulatedMachine : IBatchSystem
         if (job.Request.AfterAny is { } before && _jobs.TryGetValue(before, out var previous))
         {
             // afterany: it starts once the job it waits for has ended, in whatever state.
-            if (Advance(previous).State is JobState.Pending or JobState.Running || previous.Started is null)
+            if (Advance(previous).State is JobState.Waiting or JobState.Working || previous.Started is null)
             {
-                return new JobStatus(job.Id, JobState.Pending, "PENDING", Name: job.Request.Name);
+                return new JobStatus(job.Id, JobState.Waiting, "PENDING", Name: job.Request.Name);
             }
 
             var ended = previous.Started.Value + (previous.Final!.Elapsed ?? TimeSpan.Zero);
@@ -141,7 +141,7 @@ public sealed class SimulatedMachine : IBatchSystem
 
         if (now < start)
         {
-            return new JobStatus(job.Id, JobState.Pending, "PENDING", Name: job.Request.Name);
+            return new JobStatus(job.Id, JobState.Waiting, "PENDING", Name: job.Request.Name);
         }
 
         var folder = job.Request.WorkingDirectory;
@@ -161,7 +161,7 @@ public sealed class SimulatedMachine : IBatchSystem
         {
             Progress(folder, job, target, job.Started.Value + toTarget);
             File.WriteAllText(Path.Combine(folder, "DONE"), "");
-            job.Final = new JobStatus(job.Id, JobState.Completed, "COMPLETED", 0, 0, toTarget, job.Request.Cores, job.Request.Name);
+            job.Final = new JobStatus(job.Id, JobState.Succeeded, "COMPLETED", 0, 0, toTarget, job.Request.Cores, job.Request.Name);
             return job.Final;
         }
 
@@ -170,12 +170,12 @@ public sealed class SimulatedMachine : IBatchSystem
             var t = job.StartT + wall.TotalHours * pace;
             Progress(folder, job, t, job.Started.Value + wall);
             Checkpoint(folder, t);
-            job.Final = new JobStatus(job.Id, JobState.TimedOut, "TIMEOUT", 0, 0, wall, job.Request.Cores, job.Request.Name);
+            job.Final = new JobStatus(job.Id, JobState.OutOfTime, "TIMEOUT", 0, 0, wall, job.Request.Cores, job.Request.Name);
             return job.Final;
         }
 
         Progress(folder, job, job.StartT + ran.TotalHours * pace, now);
-        return new JobStatus(job.Id, JobState.Running, "RUNNING", Elapsed: ran, Name: job.Request.Name);
+        return new JobStatus(job.Id, JobState.Working, "RUNNING", Elapsed: ran, Name: job.Request.Name);
     }
 
     private static double Target(string folder)
@@ -194,7 +194,7 @@ public sealed class SimulatedMachine : IBatchSystem
 
         if (path == "newest")
         {
-            // Decided when it starts, as the segment script does: the newest checkpoint with its marker.
+            // Decided when it starts, as the leg script does: the newest checkpoint with its marker.
             var folder = Path.Combine(request.WorkingDirectory, "checkpoints");
             path = Directory.Exists(folder) ? Directory.EnumerateFiles(folder, "ckpt-*.json").Where(f => File.Exists(f + ".ok")).Order(StringComparer.Ordinal).LastOrDefault() ?? "" : "";
         }

@@ -24,12 +24,12 @@ public sealed class LocalRunnerTests : IDisposable
         _jobs.Request(name, _jobs.Script(name, body), afterAny: afterAny, warning: warning, cores: cores, environment: environment) with { WallTime = TimeSpan.FromSeconds(seconds) };
 
     [Fact]
-    public async Task A_segment_that_completes_reports_exit_0_with_its_output_and_environment()
+    public async Task A_leg_that_completes_reports_exit_0_with_its_output_and_environment()
     {
         var runner = LocalRunner.Create(State);
         var id = await runner.SubmitAsync(Request("ok", "echo \"restart=$CAMPAIGN_RESTART\"; echo oops >&2", environment: new() { ["CAMPAIGN_RESTART"] = "/ck/a b" }), CancellationToken.None);
         var status = (await Jobs.WaitFinal(runner, new[] { id }, TimeSpan.FromSeconds(30)))[id];
-        Assert.Equal(JobState.Completed, status.State);
+        Assert.Equal(JobState.Succeeded, status.State);
         Assert.Equal(0, status.ExitCode);
         Assert.Equal(1, status.ChargedCores);
         Assert.Equal("restart=/ck/a b\n", File.ReadAllText(Path.Combine(_jobs.Folder, "ok.out")));
@@ -37,12 +37,12 @@ public sealed class LocalRunnerTests : IDisposable
     }
 
     [Fact]
-    public async Task A_segment_that_fails_reports_its_exit_code()
+    public async Task A_leg_that_fails_reports_its_exit_code()
     {
         var runner = LocalRunner.Create(State);
         var id = await runner.SubmitAsync(Request("fail", "exit 3"), CancellationToken.None);
         var status = (await Jobs.WaitFinal(runner, new[] { id }, TimeSpan.FromSeconds(30)))[id];
-        Assert.Equal(JobState.Failed, status.State);
+        Assert.Equal(JobState.Crashed, status.State);
         Assert.Equal(3, status.ExitCode);
     }
 
@@ -54,7 +54,7 @@ public sealed class LocalRunnerTests : IDisposable
         var body = "trap 'echo checkpoint > checkpoint.txt' USR1\ntrap '' TERM\nsleep 300 &\necho $! > grandchild.pid\nwhile true; do sleep 0.2; done";
         var id = await runner.SubmitAsync(Request("limit", body, seconds: 3, warning: new WarningSignal("USR1", 2)), CancellationToken.None);
         var status = (await Jobs.WaitFinal(runner, new[] { id }, TimeSpan.FromSeconds(30)))[id];
-        Assert.Equal(JobState.TimedOut, status.State);
+        Assert.Equal(JobState.OutOfTime, status.State);
         Assert.Equal(9, status.Signal);
         Assert.Equal("checkpoint\n", File.ReadAllText(Path.Combine(_jobs.Folder, "checkpoint.txt")));
         var grandchild = int.Parse(File.ReadAllText(Path.Combine(_jobs.Folder, "grandchild.pid")).Trim(), CultureInfo.InvariantCulture);
@@ -63,14 +63,14 @@ public sealed class LocalRunnerTests : IDisposable
     }
 
     [Fact]
-    public async Task A_cancelled_segment_ends_and_cancelling_again_is_harmless()
+    public async Task A_cancelled_leg_ends_and_cancelling_again_is_harmless()
     {
         var runner = LocalRunner.Create(State);
         var id = await runner.SubmitAsync(Request("cancel", "sleep 300"), CancellationToken.None);
-        await Jobs.WaitFinal(runner, new[] { id }, TimeSpan.FromSeconds(20), s => s.State == JobState.Running);
+        await Jobs.WaitFinal(runner, new[] { id }, TimeSpan.FromSeconds(20), s => s.State == JobState.Working);
         await runner.CancelAsync(id, CancellationToken.None);
         var status = (await Jobs.WaitFinal(runner, new[] { id }, TimeSpan.FromSeconds(20)))[id];
-        Assert.Equal(JobState.Cancelled, status.State);
+        Assert.Equal(JobState.Stopped, status.State);
         await runner.CancelAsync(id, CancellationToken.None);
     }
 
@@ -82,13 +82,13 @@ public sealed class LocalRunnerTests : IDisposable
         var b = await runner.SubmitAsync(Request("b", "date +%s%N > b.start", afterAny: a), CancellationToken.None);
         var c = await runner.SubmitAsync(Request("c", "exit 0"), CancellationToken.None);
         var early = await runner.QueryAsync(new[] { a, b, c }, CancellationToken.None);
-        Assert.Equal(JobState.Running, early[a].State);
-        Assert.Equal(JobState.Pending, early[b].State); // waits for a
-        Assert.Equal(JobState.Pending, early[c].State); // no free core while a holds both
+        Assert.Equal(JobState.Working, early[a].State);
+        Assert.Equal(JobState.Waiting, early[b].State); // waits for a
+        Assert.Equal(JobState.Waiting, early[c].State); // no free core while a holds both
         var final = await Jobs.WaitFinal(runner, new[] { a, b, c }, TimeSpan.FromSeconds(30));
-        Assert.Equal(JobState.Failed, final[a].State);
-        Assert.Equal(JobState.Completed, final[b].State);
-        Assert.Equal(JobState.Completed, final[c].State);
+        Assert.Equal(JobState.Crashed, final[a].State);
+        Assert.Equal(JobState.Succeeded, final[b].State);
+        Assert.Equal(JobState.Succeeded, final[c].State);
     }
 
     [Fact]
@@ -96,14 +96,14 @@ public sealed class LocalRunnerTests : IDisposable
     {
         var first = LocalRunner.Create(State);
         var id = await first.SubmitAsync(Request("survive", "sleep 2; exit 0"), CancellationToken.None);
-        Assert.Equal(JobState.Running, (await first.QueryAsync(new[] { id }, CancellationToken.None))[id].State);
+        Assert.Equal(JobState.Working, (await first.QueryAsync(new[] { id }, CancellationToken.None))[id].State);
 
         // A new runner over the same folder, as after a crash of the host.
         var second = LocalRunner.Create(State);
-        Assert.Equal(JobState.Running, (await second.QueryAsync(new[] { id }, CancellationToken.None))[id].State);
+        Assert.Equal(JobState.Working, (await second.QueryAsync(new[] { id }, CancellationToken.None))[id].State);
         await Task.Delay(3000);
         var third = LocalRunner.Create(State);
-        Assert.Equal(JobState.Completed, (await third.QueryAsync(new[] { id }, CancellationToken.None))[id].State);
+        Assert.Equal(JobState.Succeeded, (await third.QueryAsync(new[] { id }, CancellationToken.None))[id].State);
     }
 
     [Fact]
@@ -118,7 +118,7 @@ public sealed class LocalRunnerTests : IDisposable
         File.WriteAllText(Path.Combine(folder, "supervisor.pid"), "1 999999999");
         File.WriteAllText(Path.Combine(folder, "script.pid"), "1 999999999");
         var status = (await runner.QueryAsync(new[] { id }, CancellationToken.None))[id];
-        Assert.Equal(JobState.Missing, status.State);
+        Assert.Equal(JobState.Vanished, status.State);
         Assert.Equal("ended without an exit record", status.NativeState);
     }
 
@@ -137,7 +137,7 @@ public sealed class LocalRunnerTests : IDisposable
     public async Task Unknown_ids_are_missing_and_jobs_larger_than_the_runner_are_refused()
     {
         var runner = LocalRunner.Create(State, cores: 2);
-        Assert.Equal(JobState.Missing, (await runner.QueryAsync(new[] { "42" }, CancellationToken.None))["42"].State);
+        Assert.Equal(JobState.Vanished, (await runner.QueryAsync(new[] { "42" }, CancellationToken.None))["42"].State);
         var error = await Assert.ThrowsAsync<BatchSystemException>(() => runner.SubmitAsync(Request("big", "exit 0", cores: 3), CancellationToken.None));
         Assert.Equal(BatchErrorKind.Rejected, error.Kind);
         Assert.Equal("the job needs 3 cores; the local runner has 2", error.Message);

@@ -36,7 +36,7 @@ public class ResilientBatchSystemTests
                 throw failure;
             }
 
-            return jobIds.ToDictionary(id => id, id => new JobStatus(id, JobState.Running, "RUNNING"));
+            return jobIds.ToDictionary(id => id, id => new JobStatus(id, JobState.Working, "RUNNING"));
         }
 
         public Task CancelAsync(string jobId, CancellationToken cancellationToken)
@@ -54,7 +54,7 @@ public class ResilientBatchSystemTests
 
     private static readonly RetryOptions Options = new(4, TimeSpan.FromSeconds(2), TimeSpan.FromSeconds(10), TimeSpan.FromSeconds(30));
 
-    private static JobRequest Request() => new("cmp.a.s001", "/w/a.sh", "/w", 1, TimeSpan.FromMinutes(5), "/w/o", "/w/e", new Dictionary<string, string>());
+    private static JobRequest Request() => new("cmp.a.leg001", "/w/a.sh", "/w", 1, TimeSpan.FromMinutes(5), "/w/o", "/w/e", new Dictionary<string, string>());
 
     private static async Task<T> Drive<T>(FakeTimeProvider time, Task<T> task)
     {
@@ -99,7 +99,7 @@ public class ResilientBatchSystemTests
         var inner = new Flaky(new TimeoutException());
         var resilient = new ResilientBatchSystem(inner, Options, time);
         var statuses = await Drive(time, resilient.QueryAsync(new[] { "1" }, CancellationToken.None));
-        Assert.Equal(JobState.Running, statuses["1"].State);
+        Assert.Equal(JobState.Working, statuses["1"].State);
         Assert.Equal(2, inner.Calls);
     }
 

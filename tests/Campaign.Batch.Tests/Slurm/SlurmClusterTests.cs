@@ -18,18 +18,18 @@ public sealed class SlurmClusterTests : IDisposable
     public void Dispose() => Directory.Delete(_folder, true);
 
     [SlurmFact]
-    public async Task A_segment_that_completes_reports_exit_0_and_its_environment_reaches_the_script()
+    public async Task A_leg_that_completes_reports_exit_0_and_its_environment_reaches_the_script()
     {
         using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var script = _jobs.Script("ok", "echo \"restart=$CAMPAIGN_RESTART\"; exit 0");
         var id = await slurm.SubmitAsync(_jobs.Request("ok", script, environment: new Dictionary<string, string> { ["CAMPAIGN_RESTART"] = "/ck/dir with space" }), CancellationToken.None);
         var status = (await Jobs.WaitFinal(slurm, new[] { id }, TimeSpan.FromSeconds(60)))[id];
-        Assert.Equal(JobState.Completed, status.State);
+        Assert.Equal(JobState.Succeeded, status.State);
         Assert.Equal(0, status.ExitCode);
         Assert.Equal(0, status.Signal);
         Assert.Equal(1, status.ChargedCores);
-        Assert.Equal("cmp.t0.ok.s001", status.Name);
+        Assert.Equal("cmp.t0.ok.leg001", status.Name);
         Assert.Equal("restart=/ck/dir with space\n", File.ReadAllText(Path.Combine(_folder, "ok.out")));
     }
 
@@ -46,41 +46,41 @@ public sealed class SlurmClusterTests : IDisposable
     }
 
     [SlurmFact]
-    public async Task A_segment_that_fails_reports_its_exit_code()
+    public async Task A_leg_that_fails_reports_its_exit_code()
     {
         using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var id = await slurm.SubmitAsync(_jobs.Request("fail", _jobs.Script("fail", "exit 3")), CancellationToken.None);
         var status = (await Jobs.WaitFinal(slurm, new[] { id }, TimeSpan.FromSeconds(60)))[id];
-        Assert.Equal(JobState.Failed, status.State);
+        Assert.Equal(JobState.Crashed, status.State);
         Assert.Equal(3, status.ExitCode);
     }
 
     [SlurmFact]
-    public async Task A_cancelled_segment_is_reported_cancelled_and_cancelling_again_is_harmless()
+    public async Task A_cancelled_leg_is_reported_cancelled_and_cancelling_again_is_harmless()
     {
         using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var id = await slurm.SubmitAsync(_jobs.Request("cancel", _jobs.Script("cancel", "sleep 300")), CancellationToken.None);
-        await Jobs.WaitFinal(slurm, new[] { id }, TimeSpan.FromSeconds(30), s => s.State == JobState.Running);
+        await Jobs.WaitFinal(slurm, new[] { id }, TimeSpan.FromSeconds(30), s => s.State == JobState.Working);
         await slurm.CancelAsync(id, CancellationToken.None);
         var status = (await Jobs.WaitFinal(slurm, new[] { id }, TimeSpan.FromSeconds(60)))[id];
-        Assert.Equal(JobState.Cancelled, status.State);
+        Assert.Equal(JobState.Stopped, status.State);
         await slurm.CancelAsync(id, CancellationToken.None);
     }
 
     [SlurmFact]
-    public async Task An_afterany_chain_starts_the_next_segment_only_after_the_first_ends_in_any_state()
+    public async Task An_afterany_chain_starts_the_next_leg_only_after_the_first_ends_in_any_state()
     {
         using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
         var first = await slurm.SubmitAsync(_jobs.Request("first", _jobs.Script("first", "sleep 3; date +%s%N > first.end; exit 1")), CancellationToken.None);
         var second = await slurm.SubmitAsync(_jobs.Request("second", _jobs.Script("second", "date +%s%N > second.start"), afterAny: first), CancellationToken.None);
         var pending = await slurm.QueryAsync(new[] { second }, CancellationToken.None);
-        Assert.Equal(JobState.Pending, pending[second].State);
+        Assert.Equal(JobState.Waiting, pending[second].State);
         var statuses = await Jobs.WaitFinal(slurm, new[] { first, second }, TimeSpan.FromSeconds(90));
-        Assert.Equal(JobState.Failed, statuses[first].State);
-        Assert.Equal(JobState.Completed, statuses[second].State);
+        Assert.Equal(JobState.Crashed, statuses[first].State);
+        Assert.Equal(JobState.Succeeded, statuses[second].State);
         var end = long.Parse(File.ReadAllText(Path.Combine(_folder, "first.end")).Trim(), System.Globalization.CultureInfo.InvariantCulture);
         var start = long.Parse(File.ReadAllText(Path.Combine(_folder, "second.start")).Trim(), System.Globalization.CultureInfo.InvariantCulture);
         Assert.True(start > end);
@@ -102,10 +102,10 @@ public sealed class SlurmClusterTests : IDisposable
         var statuses = await slurm.QueryAsync(ids, CancellationToken.None);
         Assert.Equal(1, slurm.CommandsRun - before); // one squeue for all five
         Assert.Equal(ids.Count, statuses.Count);
-        Assert.All(ids, id => Assert.True(statuses[id].State is JobState.Pending or JobState.Running, statuses[id].NativeState));
+        Assert.All(ids, id => Assert.True(statuses[id].State is JobState.Waiting or JobState.Working, statuses[id].NativeState));
 
         var withUnknown = await slurm.QueryAsync(ids.Append("999999").ToList(), CancellationToken.None);
-        Assert.Equal(JobState.Missing, withUnknown["999999"].State);
+        Assert.Equal(JobState.Vanished, withUnknown["999999"].State);
         foreach (var id in ids)
         {
             await slurm.CancelAsync(id, CancellationToken.None);
@@ -129,7 +129,7 @@ public sealed class SlurmSlowTests : IDisposable
     public void Dispose() => Directory.Delete(_folder, true);
 
     [SlurmFact]
-    public async Task A_segment_catches_the_warning_writes_a_checkpoint_and_times_out_and_a_purged_job_is_still_found()
+    public async Task A_leg_catches_the_warning_writes_a_checkpoint_and_times_out_and_a_purged_job_is_still_found()
     {
         using var cluster = SlurmCluster.Use();
         var slurm = SlurmAdapter.Create();
@@ -138,14 +138,14 @@ public sealed class SlurmSlowTests : IDisposable
         var shortId = await slurm.SubmitAsync(_jobs.Request("short", _jobs.Script("short", "exit 0")), CancellationToken.None);
 
         var status = (await Jobs.WaitFinal(slurm, new[] { id }, TimeSpan.FromSeconds(180)))[id];
-        Assert.Equal(JobState.TimedOut, status.State);
+        Assert.Equal(JobState.OutOfTime, status.State);
         Assert.Equal("checkpoint\n", File.ReadAllText(Path.Combine(_folder, "checkpoint.txt")));
 
         // The short job finished long ago; with MinJobAge=10 the controller purges it (its purge pass runs about
         // once a minute) and the final state must then come from the job-completion file.
         var purged = (await Jobs.WaitFinal(slurm, new[] { shortId }, TimeSpan.FromSeconds(120), s => s.Source == "jobcomp file"))[shortId];
         Assert.Equal("jobcomp file", purged.Source);
-        Assert.Equal(JobState.Completed, purged.State);
+        Assert.Equal(JobState.Succeeded, purged.State);
         Assert.Equal(0, purged.ExitCode);
     }
 }

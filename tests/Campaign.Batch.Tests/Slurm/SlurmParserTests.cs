@@ -25,13 +25,13 @@ public class SlurmParserTests
     [Fact]
     public void Squeue_lines_give_states_names_cpus_and_elapsed()
     {
-        const string output = "7|RUNNING|cmp.q2-a04.s001|4|1-02:03:04\n8|PENDING|cmp.q2-a04.s002|4|0:00\n9|COMPLETING|x|1|12:34\n";
+        const string output = "7|RUNNING|cmp.q2-a04.leg001|4|1-02:03:04\n8|PENDING|cmp.q2-a04.leg002|4|0:00\n9|COMPLETING|x|1|12:34\n";
         var statuses = SlurmParsers.Squeue(output);
         Assert.Equal(3, statuses.Count);
-        Assert.Equal(new JobStatus("7", JobState.Running, "RUNNING", null, null, new TimeSpan(1, 2, 3, 4), 4, "cmp.q2-a04.s001", "squeue"), statuses[0]);
-        Assert.Equal(JobState.Pending, statuses[1].State);
+        Assert.Equal(new JobStatus("7", JobState.Working, "RUNNING", null, null, new TimeSpan(1, 2, 3, 4), 4, "cmp.q2-a04.leg001", "squeue"), statuses[0]);
+        Assert.Equal(JobState.Waiting, statuses[1].State);
         Assert.Equal(TimeSpan.Zero, statuses[1].Elapsed);
-        Assert.Equal(JobState.Finishing, statuses[2].State);
+        Assert.Equal(JobState.Working, statuses[2].State);
         Assert.Equal(new TimeSpan(0, 12, 34), statuses[2].Elapsed);
     }
 
@@ -42,8 +42,8 @@ public class SlurmParserTests
         const string output = "JobId=1 JobName=j.sh UserId=root(0) JobState=FAILED Reason=NonZeroExitCode Dependency=(null) Requeue=1 Restarts=0 ExitCode=3:0 RunTime=00:00:07 TimeLimit=UNLIMITED NumNodes=1 NumCPUs=2 NumTasks=1 Command=/tmp/j.sh\n"
             + "JobId=2 JobName=k JobState=CANCELLED Reason=None ExitCode=0:15 RunTime=00:01:05 NumCPUs=1\n";
         var statuses = SlurmParsers.KeyValueRecords(output, "scontrol");
-        Assert.Equal(new JobStatus("1", JobState.Failed, "FAILED", 3, 0, TimeSpan.FromSeconds(7), 2, "j.sh", "scontrol"), statuses[0]);
-        Assert.Equal(JobState.Cancelled, statuses[1].State);
+        Assert.Equal(new JobStatus("1", JobState.Crashed, "FAILED", 3, 0, TimeSpan.FromSeconds(7), 2, "j.sh", "scontrol"), statuses[0]);
+        Assert.Equal(JobState.Stopped, statuses[1].State);
         Assert.Equal(15, statuses[1].Signal);
     }
 
@@ -53,50 +53,50 @@ public class SlurmParserTests
         // Captured from jobcomp/filetxt on Slurm 22.05.
         const string output = "JobId=1 UserId=root(0) GroupId=root(0) Name=j.sh JobState=FAILED Partition=test TimeLimit=UNLIMITED StartTime=2026-12-01T18:06:05 EndTime=2026-12-01T18:06:15 NodeList=vm NodeCnt=1 ProcCnt=1 WorkDir=/work/main ReservationName= Tres=cpu=1,mem=2000M,node=1,billing=1 Account= QOS= WcKey= Cluster=unknown SubmitTime=2026-12-01T18:06:02 EligibleTime=2026-12-01T18:06:02 DerivedExitCode=0:0 ExitCode=3:0\n";
         var status = Assert.Single(SlurmParsers.KeyValueRecords(output, "jobcomp file"));
-        Assert.Equal(new JobStatus("1", JobState.Failed, "FAILED", 3, 0, TimeSpan.FromSeconds(10), 1, "j.sh", "jobcomp file"), status);
+        Assert.Equal(new JobStatus("1", JobState.Crashed, "FAILED", 3, 0, TimeSpan.FromSeconds(10), 1, "j.sh", "jobcomp file"), status);
     }
 
     [Fact]
     public void Sacct_parsable_lines_are_read_with_their_state_words()
     {
         // sacct -P separates fields with '|' and has no trailing '|' (Slurm documentation); "CANCELLED by 0" as printed.
-        const string output = "41|cmp.a.s001|COMPLETED|0:0|3605|8\n42|cmp.a.s002|CANCELLED by 0|0:15|12|8\n43|x|TIMEOUT|0:0|3660|8\n";
+        const string output = "41|cmp.a.leg001|COMPLETED|0:0|3605|8\n42|cmp.a.leg002|CANCELLED by 0|0:15|12|8\n43|x|TIMEOUT|0:0|3660|8\n";
         var statuses = SlurmParsers.Sacct(output);
-        Assert.Equal(new JobStatus("41", JobState.Completed, "COMPLETED", 0, 0, TimeSpan.FromSeconds(3605), 8, "cmp.a.s001", "sacct"), statuses[0]);
-        Assert.Equal(JobState.Cancelled, statuses[1].State);
-        Assert.Equal(JobState.TimedOut, statuses[2].State);
+        Assert.Equal(new JobStatus("41", JobState.Succeeded, "COMPLETED", 0, 0, TimeSpan.FromSeconds(3605), 8, "cmp.a.leg001", "sacct"), statuses[0]);
+        Assert.Equal(JobState.Stopped, statuses[1].State);
+        Assert.Equal(JobState.OutOfTime, statuses[2].State);
     }
 
     // Source: Slurm documentation, "JOB STATE CODES" of squeue/sacct (base states and flags), as listed in the
     // project's reference sheet.
     [Theory]
-    [InlineData("PENDING", JobState.Pending)]
-    [InlineData("RUNNING", JobState.Running)]
-    [InlineData("SUSPENDED", JobState.Suspended)]
-    [InlineData("COMPLETED", JobState.Completed)]
-    [InlineData("FAILED", JobState.Failed)]
-    [InlineData("TIMEOUT", JobState.TimedOut)]
-    [InlineData("CANCELLED", JobState.Cancelled)]
-    [InlineData("NODE_FAIL", JobState.NodeFailed)]
-    [InlineData("PREEMPTED", JobState.Preempted)]
-    [InlineData("OUT_OF_MEMORY", JobState.OutOfMemory)]
-    [InlineData("BOOT_FAIL", JobState.LaunchFailed)]
-    [InlineData("DEADLINE", JobState.DeadlineMissed)]
-    [InlineData("COMPLETING", JobState.Finishing)]
-    [InlineData("CONFIGURING", JobState.Pending)]
-    [InlineData("REQUEUED", JobState.Requeued)]
-    [InlineData("REQUEUE_HOLD", JobState.Requeued)]
-    [InlineData("SPECIAL_EXIT", JobState.Requeued)]
-    [InlineData("RESIZING", JobState.Running)]
-    [InlineData("SIGNALING", JobState.Running)]
-    [InlineData("STAGE_OUT", JobState.Finishing)]
-    [InlineData("STOPPED", JobState.Suspended)]
-    [InlineData("CANCELLED by 1000", JobState.Cancelled)]
-    [InlineData("COMPLETED+", JobState.Completed)]
-    [InlineData("CD", JobState.Completed)]
-    [InlineData("OOM", JobState.OutOfMemory)]
-    [InlineData("SOMETHING_NEW", JobState.Unknown)]
-    [InlineData("", JobState.Unknown)]
+    [InlineData("PENDING", JobState.Waiting)]
+    [InlineData("RUNNING", JobState.Working)]
+    [InlineData("SUSPENDED", JobState.Paused)]
+    [InlineData("COMPLETED", JobState.Succeeded)]
+    [InlineData("FAILED", JobState.Crashed)]
+    [InlineData("TIMEOUT", JobState.OutOfTime)]
+    [InlineData("CANCELLED", JobState.Stopped)]
+    [InlineData("NODE_FAIL", JobState.Interrupted)]
+    [InlineData("PREEMPTED", JobState.Interrupted)]
+    [InlineData("OUT_OF_MEMORY", JobState.Crashed)]
+    [InlineData("BOOT_FAIL", JobState.Crashed)]
+    [InlineData("DEADLINE", JobState.Crashed)]
+    [InlineData("COMPLETING", JobState.Working)]
+    [InlineData("CONFIGURING", JobState.Waiting)]
+    [InlineData("REQUEUED", JobState.Waiting)]
+    [InlineData("REQUEUE_HOLD", JobState.Waiting)]
+    [InlineData("SPECIAL_EXIT", JobState.Waiting)]
+    [InlineData("RESIZING", JobState.Working)]
+    [InlineData("SIGNALING", JobState.Working)]
+    [InlineData("STAGE_OUT", JobState.Working)]
+    [InlineData("STOPPED", JobState.Paused)]
+    [InlineData("CANCELLED by 1000", JobState.Stopped)]
+    [InlineData("COMPLETED+", JobState.Succeeded)]
+    [InlineData("CD", JobState.Succeeded)]
+    [InlineData("OOM", JobState.Crashed)]
+    [InlineData("SOMETHING_NEW", JobState.Unrecognised)]
+    [InlineData("", JobState.Unrecognised)]
     public void Every_documented_state_maps_and_unknown_ones_stay_unknown(string native, JobState state)
     {
         Assert.Equal(state, SlurmStates.Parse(native));
@@ -105,9 +105,9 @@ public class SlurmParserTests
     [Fact]
     public void Unknown_is_never_final()
     {
-        Assert.False(JobState.Unknown.IsFinal());
-        Assert.False(JobState.Missing.IsFinal());
-        Assert.True(JobState.TimedOut.IsFinal());
+        Assert.False(JobState.Unrecognised.IsFinal());
+        Assert.False(JobState.Vanished.IsFinal());
+        Assert.True(JobState.OutOfTime.IsFinal());
     }
 
     [Theory]

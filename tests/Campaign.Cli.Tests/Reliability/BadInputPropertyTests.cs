@@ -67,7 +67,7 @@ public sealed class BadInputPropertyTests(BadInputWorkspace workspace, ITestOutp
         ["outcome"] = new[] { "", "done", "maybe", "1" },
         ["core_hours"] = new[] { "-5" },
         ["t_end"] = new[] { "-10" },
-        ["segments"] = new[] { "-1", "1.5" },
+        ["legs"] = new[] { "-1", "1.5" },
     };
 
     private static readonly HashSet<string> TextColumns = new(StringComparer.Ordinal) { "run_id", "cluster", "outcome", "id" };
@@ -212,7 +212,7 @@ public sealed class BadInputPropertyTests(BadInputWorkspace workspace, ITestOutp
     [Fact]
     public void Malformed_run_logs_are_refused_with_their_location_and_store_nothing()
     {
-        var cases = BadCsv(ValidRunLogs(), RunLogBad, new[] { "run_id", "outcome" }, new[] { "core_hours", "t_end", "segments", "checkpoint_gb", "output_gb", "chi1x", "chi2y" });
+        var cases = BadCsv(ValidRunLogs(), RunLogBad, new[] { "run_id", "outcome" }, new[] { "core_hours", "t_end", "legs", "checkpoint_gb", "output_gb", "chi1x", "chi2y" });
         Check(cases, "bad-logs.csv", path => CliRun.Of(workspace.Folder.Path, "--dir", "ws", "logs", "import", path), seed: 11);
     }
 

@@ -10,7 +10,7 @@ using Xunit.Abstractions;
 namespace Campaign.Cli.Tests.Reliability;
 
 /// <summary>
-/// Campaigns on the local runner (real detached processes, the demo payload, 3-second segments) under injected
+/// Campaigns on the local runner (real detached processes, the demo payload, 3-second legs) under injected
 /// faults. Seeded and bounded in time; the figures they print are recorded in docs/reliability.md.
 /// </summary>
 [Collection("tracking")]
@@ -61,7 +61,7 @@ public sealed class FaultInjectionTests(ITestOutputHelper output) : IDisposable
     public void Transient_batch_system_faults_are_retried_without_failing_or_duplicating_anything_and_a_permanent_one_is_reported_once()
     {
         Prepare("sm-q1-a00,sm-q2-a04");
-        var refused = WorkspaceId.JobName(Ws(), "sm-q2-a04.L2", 1);
+        var refused = WorkspaceId.JobName(Ws(), "sm-q2-a04.res2", 1);
         var faults = new FaultInjector(seed: 909, rate: 0.35, permanentlyRefused: refused);
         var reports = RunCycles(faults, TimeSpan.FromSeconds(150));
         output.WriteLine($"{reports.Count} cycles; {faults}");
@@ -70,19 +70,19 @@ public sealed class FaultInjectionTests(ITestOutputHelper output) : IDisposable
         Assert.True(faults.LostSubmissions > 0, "no submission lost its answer: the dangerous case was not exercised; " + faults);
         Assert.All(new[] { "refused", "hang", "lost_answer", "garbled", "permanent" }, kind => Assert.True(faults.Injected.GetValueOrDefault(kind) > 0, kind + ": " + faults));
         var names = LocalJobs.SubmittedNames(Ws());
-        Assert.Equal(names.Count, names.Distinct().Count()); // no segment submitted twice, lost answers included
+        Assert.Equal(names.Count, names.Distinct().Count()); // no leg submitted twice, lost answers included
         Assert.DoesNotContain(refused, names);
 
         using var db = CampaignDatabase.Open(Ws("campaign.db"), TimeProvider.System);
         var states = db.Query<(string RunId, string State, string Reason)>("SELECT run_id AS RunId, state AS State, reason AS Reason FROM tracked_runs").ToDictionary(r => r.RunId);
         Assert.Equal(6, states.Count);
-        Assert.All(states.Values.Where(r => r.RunId != "sm-q2-a04.L2"), r => Assert.True(r.State == "finished", $"{r.RunId}: {r.State} {r.Reason}"));
-        Assert.Equal("held", states["sm-q2-a04.L2"].State);
-        Assert.Equal("submission rejected: sbatch: error: Batch job submission failed: Invalid account or account/partition combination specified", states["sm-q2-a04.L2"].Reason);
-        Assert.Equal(1, db.ExecuteScalar<long>("SELECT COUNT(*) FROM run_events WHERE run_id = 'sm-q2-a04.L2' AND to_state = 'held'"));
+        Assert.All(states.Values.Where(r => r.RunId != "sm-q2-a04.res2"), r => Assert.True(r.State == "finished", $"{r.RunId}: {r.State} {r.Reason}"));
+        Assert.Equal("held", states["sm-q2-a04.res2"].State);
+        Assert.Equal("submission rejected: sbatch: error: Batch job submission failed: Invalid account or account/partition combination specified", states["sm-q2-a04.res2"].Reason);
+        Assert.Equal(1, db.ExecuteScalar<long>("SELECT COUNT(*) FROM run_events WHERE run_id = 'sm-q2-a04.res2' AND to_state = 'held'"));
         Assert.Equal(1, faults.Injected["permanent"]); // surfaced once: a held run is not submitted again
-        // Nothing was recorded as failed because of an injected fault: every ended segment ended as the payload did.
-        Assert.Equal(0, db.ExecuteScalar<long>("SELECT COUNT(*) FROM segments WHERE job_state NOT IN ('Completed', 'Timeout')"));
-        Assert.Equal(0, db.ExecuteScalar<long>("SELECT COUNT(*) FROM segments WHERE phase <> 'ended'"));
+        // Nothing was recorded as failed because of an injected fault: every ended leg ended as the payload did.
+        Assert.Equal(0, db.ExecuteScalar<long>("SELECT COUNT(*) FROM legs WHERE job_state NOT IN ('Completed', 'Timeout')"));
+        Assert.Equal(0, db.ExecuteScalar<long>("SELECT COUNT(*) FROM legs WHERE phase <> 'ended'"));
     }
 }

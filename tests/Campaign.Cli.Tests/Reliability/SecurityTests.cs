@@ -116,12 +116,12 @@ public sealed class SecurityTests : IDisposable
         }
         finally
         {
-            CliRun.Live(_folder.Path, "--dir", "ws", "abandon", "sm-q1-a00.L1.r1", "sm-q1-a00.L2.r1", "sm-q1-a00.L3.r1");
+            CliRun.Live(_folder.Path, "--dir", "ws", "abandon", "sm-q1-a00.res1.r1", "sm-q1-a00.res2.r1", "sm-q1-a00.res3.r1");
             LocalJobs.KillAll(Path.Combine(_folder.Path, "ws"));
         }
 
         var events = File.ReadAllLines(Path.Combine(_folder.Path, "ws", "events.jsonl")).Where(l => l.Length > 0).Select(l => JsonDocument.Parse(l).RootElement).ToList();
-        Assert.Contains(events, e => e.GetProperty("run_id").GetString() == "sm-q1-a00.L1.r1");
+        Assert.Contains(events, e => e.GetProperty("run_id").GetString() == "sm-q1-a00.res1.r1");
         Assert.All(File.ReadAllLines(Path.Combine(_folder.Path, "ws", "argc.txt")), line => Assert.Equal("0", line));
     }
 }

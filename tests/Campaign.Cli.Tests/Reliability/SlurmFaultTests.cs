@@ -6,7 +6,7 @@ namespace Campaign.Cli.Tests.Reliability;
 
 /// <summary>
 /// The tracking cycle against the real one-node Slurm while the cluster misbehaves: the controller is stopped
-/// and started again in the middle of a segment, and the node goes down under a running segment. Holds the
+/// and started again in the middle of a leg, and the node goes down under a running leg. Holds the
 /// cluster exclusively (other Slurm tests wait).
 /// </summary>
 [Collection("slurm-tracking")]
@@ -20,7 +20,7 @@ public sealed class SlurmFaultTests(ITestOutputHelper output) : IDisposable
         if (SlurmCluster.SkipReason is null && _node is not null)
         {
             Run("scontrol", "update", $"NodeName={_node}", "State=RESUME");
-            Run("scancel", "--name", WorkspaceId.JobName(Path.Combine(_folder.Path, "ws"), "sm-q1-a00.L1.r1", 1));
+            Run("scancel", "--name", WorkspaceId.JobName(Path.Combine(_folder.Path, "ws"), "sm-q1-a00.res1.r1", 1));
         }
 
         _folder.Dispose();
@@ -57,7 +57,7 @@ public sealed class SlurmFaultTests(ITestOutputHelper output) : IDisposable
     }
 
     private System.Text.Json.JsonElement Run1() =>
-        CliRun.Live(_folder.Path, "--dir", "ws", "status", "--json").Json().GetProperty("runs").EnumerateArray().Single(r => r.GetProperty("id").GetString() == "sm-q1-a00.L1.r1");
+        CliRun.Live(_folder.Path, "--dir", "ws", "status", "--json").Json().GetProperty("runs").EnumerateArray().Single(r => r.GetProperty("id").GetString() == "sm-q1-a00.res1.r1");
 
     private void TickUntil(Func<System.Text.Json.JsonElement, bool> done, TimeSpan limit, string what)
     {
@@ -82,8 +82,8 @@ public sealed class SlurmFaultTests(ITestOutputHelper output) : IDisposable
         using var cluster = SlurmCluster.Use(exclusive: true);
         var state = Path.GetDirectoryName(SlurmCluster.ConfigFile)!;
         var ws = SlurmWorkspace.Create(_folder.Path, warningSeconds: 30, rehearsal: true);
-        File.WriteAllText(Path.Combine(ws, "runs", "sm-q1-a00.L1.r1", "payload.json"), "{\"steps_per_second\": 60, \"checkpoint_every\": 100}");
-        TickUntil(r => r.GetProperty("state").GetString() == "running", TimeSpan.FromSeconds(60), "the first segment to run");
+        File.WriteAllText(Path.Combine(ws, "runs", "sm-q1-a00.res1.r1", "payload.json"), "{\"steps_per_second\": 60, \"checkpoint_every\": 100}");
+        TickUntil(r => r.GetProperty("state").GetString() == "running", TimeSpan.FromSeconds(60), "the first leg to run");
 
         // 1. The controller stops (as for an upgrade or a crash) and comes back a few seconds later with its saved
         // state, while a cycle is querying it: the cycle's retries ride it out.
@@ -108,17 +108,17 @@ public sealed class SlurmFaultTests(ITestOutputHelper output) : IDisposable
         var outage = await during;
         output.WriteLine($"cycle during the outage: exit {outage.ExitCode} {outage.Err} {outage.Out}");
         Assert.Equal(0, outage.ExitCode);
-        // Still the same segment, still active (running, or back in the queue if the controller requeued it).
+        // Still the same leg, still active (running, or back in the queue if the controller requeued it).
         Assert.Contains(Run1().GetProperty("state").GetString(), new[] { "running", "queued" });
-        Assert.Equal(1, Run1().GetProperty("segments").GetArrayLength());
+        Assert.Equal(1, Run1().GetProperty("legs").GetArrayLength());
 
-        // 2. The node is drained (reported failing) under a running segment: the segment ends, the next one waits
+        // 2. The node is drained (reported failing) under a running leg: the leg ends, the next one waits
         // for a node; the node comes back and the campaign carries on.
-        TickUntil(r => r.GetProperty("state").GetString() == "running", TimeSpan.FromSeconds(120), "a running segment");
+        TickUntil(r => r.GetProperty("state").GetString() == "running", TimeSpan.FromSeconds(120), "a running leg");
         var node = _node = Run("sinfo", "-h", "-N", "-o", "%N").Text.Split('\n')[0].Trim();
         Assert.Equal(0, Run("scontrol", "update", $"NodeName={node}", "State=DRAIN", "Reason=campaign-test").Code);
-        var segmentsBefore = Run1().GetProperty("segments").GetArrayLength();
-        TickUntil(r => r.GetProperty("segments").GetArrayLength() > segmentsBefore, TimeSpan.FromSeconds(150), "the next segment, queued behind the drained node");
+        var legsBefore = Run1().GetProperty("legs").GetArrayLength();
+        TickUntil(r => r.GetProperty("legs").GetArrayLength() > legsBefore, TimeSpan.FromSeconds(150), "the next leg, queued behind the drained node");
         Thread.Sleep(5000);
         Tick();
         Assert.NotEqual("running", Run1().GetProperty("state").GetString()); // queued: no node to run on
@@ -128,8 +128,8 @@ public sealed class SlurmFaultTests(ITestOutputHelper output) : IDisposable
         var run = Run1();
         output.WriteLine(run.ToString());
         Assert.Equal("finished", run.GetProperty("state").GetString());
-        var segments = run.GetProperty("segments").EnumerateArray().ToList();
-        Assert.All(segments, s => Assert.False(string.IsNullOrEmpty(s.GetProperty("job_id").GetString())));
-        Assert.Equal(segments.Count, segments.Select(s => s.GetProperty("job_id").GetString()).Distinct().Count());
+        var legs = run.GetProperty("legs").EnumerateArray().ToList();
+        Assert.All(legs, s => Assert.False(string.IsNullOrEmpty(s.GetProperty("job_id").GetString())));
+        Assert.Equal(legs.Count, legs.Select(s => s.GetProperty("job_id").GetString()).Distinct().Count());
     }
 }

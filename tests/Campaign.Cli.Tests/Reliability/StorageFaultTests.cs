@@ -150,12 +150,12 @@ public sealed class StorageFaultTests(ITestOutputHelper output) : IDisposable
         var config = File.ReadAllText(Ws("campaign.toml")).Replace("[tracking]\n", "[tracking]\ncheckpoint_checksum = true\n", StringComparison.Ordinal);
         File.WriteAllText(Ws("campaign.toml"), config);
 
-        Assert.Equal(3, Active()); // submits the first segments
-        // Let segment 1 of every run end (3 s wall time, checkpoints every 500 M), then damage L1's newest checkpoint
+        Assert.Equal(3, Active()); // submits the first legs
+        // Let leg 1 of every run end (3 s wall time, checkpoints every 500 M), then damage res1's newest checkpoint
         // the way a crash in the middle of a write or a bad disk would: truncated, its marker still there.
-        var folder = Ws("runs/sm-q1-a00.L1.r1/checkpoints");
+        var folder = Ws("runs/sm-q1-a00.res1.r1/checkpoints");
         var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(30);
-        var name = WorkspaceId.JobName(Ws(), "sm-q1-a00.L1.r1", 1);
+        var name = WorkspaceId.JobName(Ws(), "sm-q1-a00.res1.r1", 1);
         bool Ended() => Directory.EnumerateFiles(Ws("local-runner"), "request.json", SearchOption.AllDirectories)
             .Any(f => JsonDocument.Parse(File.ReadAllText(f)).RootElement.GetProperty("Name").GetString() == name && File.Exists(Path.Combine(Path.GetDirectoryName(f)!, "exit.json")));
         while (DateTime.UtcNow < deadline && !Ended())
@@ -163,24 +163,24 @@ public sealed class StorageFaultTests(ITestOutputHelper output) : IDisposable
             Thread.Sleep(200);
         }
 
-        Assert.True(Ended(), "segment 1 did not end");
+        Assert.True(Ended(), "leg 1 did not end");
 
         var files = Directory.EnumerateFiles(folder, "ckpt-*.json").Order(StringComparer.Ordinal).ToList();
-        Assert.True(files.Count >= 2, "segment 1 wrote " + files.Count + " checkpoints");
+        Assert.True(files.Count >= 2, "leg 1 wrote " + files.Count + " checkpoints");
         var newest = files[^1];
         var bytes = File.ReadAllBytes(newest);
         File.WriteAllBytes(newest, bytes[..(bytes.Length / 2)]);
 
         TickUntilIdle(TimeSpan.FromSeconds(120));
         var database = Ws("campaign.db");
-        var restartFrom = (string?)Scalar(database, "SELECT restart_from FROM segments WHERE run_id = 'sm-q1-a00.L1.r1' AND number = 2");
+        var restartFrom = (string?)Scalar(database, "SELECT restart_from FROM legs WHERE run_id = 'sm-q1-a00.res1.r1' AND number = 2");
         Assert.Equal(Path.GetFileName(files[^2]), Path.GetFileName(restartFrom));
-        var why = (string?)Scalar(database, "SELECT why FROM run_events WHERE run_id = 'sm-q1-a00.L1.r1' AND why LIKE '%passed over%' ORDER BY id LIMIT 1");
+        var why = (string?)Scalar(database, "SELECT why FROM run_events WHERE run_id = 'sm-q1-a00.res1.r1' AND why LIKE '%passed over%' ORDER BY id LIMIT 1");
         Assert.NotNull(why);
         Assert.Contains(Path.GetFileName(newest), why, StringComparison.Ordinal);
         Assert.Contains("checksum", why, StringComparison.Ordinal);
         output.WriteLine(why);
-        Assert.Equal("finished", (string?)Scalar(database, "SELECT state FROM tracked_runs WHERE run_id = 'sm-q1-a00.L1.r1'"));
+        Assert.Equal("finished", (string?)Scalar(database, "SELECT state FROM tracked_runs WHERE run_id = 'sm-q1-a00.res1.r1'"));
     }
 
     [Fact]
@@ -300,7 +300,7 @@ public sealed class StorageFaultTests(ITestOutputHelper output) : IDisposable
 
 
         // Space returns: nothing was corrupted or half-written, and the daemon carries the campaign to its end with
-        // every segment submitted once.
+        // every leg submitted once.
         File.Delete(filler);
         Assert.True(watch.WaitForExit(TimeSpan.FromSeconds(150)), "the daemon did not finish after space returned");
         var errors = await daemonErr;

@@ -1,8 +1,8 @@
 namespace Campaign.Cli.Tests.Support;
 
 /// <summary>
-/// The demo workspace with a machine "minislurm" on the test cluster, tracking one run (sm-q1-a00.L1, or its rehearsal
-/// sm-q1-a00.L1.r1; its other levels abandoned) with one-minute segments: what the Slurm tracking tests start from.
+/// The demo workspace with a machine "minislurm" on the test cluster, tracking one run (sm-q1-a00.res1, or its rehearsal
+/// sm-q1-a00.res1.r1; its other levels abandoned) with one-minute legs: what the Slurm tracking tests start from.
 /// </summary>
 public static class SlurmWorkspace
 {
@@ -16,7 +16,7 @@ public static class SlurmWorkspace
             "name = \"minislurm\"\nbatch_system = \"slurm\"\ncores_per_node = 8\nmemory_per_node_gb = 2\nwall_limit_hours = 1\ncharge_whole_nodes = false\n");
         var config = File.ReadAllText(Path.Combine(ws, "campaign.toml"))
             .Replace("machines = [\"halyard\", \"gunwale\", \"workbench\"]", "machines = [\"halyard\", \"gunwale\", \"workbench\", \"minislurm\"]", StringComparison.Ordinal)
-            .Replace("segment_minutes = 0.05", "segment_minutes = 1" + (prequeue ? "\nprequeue = true" : ""), StringComparison.Ordinal)
+            .Replace("leg_minutes = 0.05", "leg_minutes = 1" + (prequeue ? "\nprequeue = true" : ""), StringComparison.Ordinal)
             .Replace("warning_seconds = 1", "warning_seconds = " + warningSeconds.ToString(System.Globalization.CultureInfo.InvariantCulture), StringComparison.Ordinal)
             .Replace("stall_minutes = 0.045", "stall_minutes = 5", StringComparison.Ordinal);
         File.WriteAllText(Path.Combine(ws, "campaign.toml"), config);
@@ -24,7 +24,7 @@ public static class SlurmWorkspace
         Assert.Equal(0, CliRun.Live(folder, rehearsal ? track.Append("--rehearsal").ToArray() : track).ExitCode);
         foreach (var level in new[] { 2, 3 })
         {
-            Assert.Equal(0, CliRun.Live(folder, "--dir", "ws", "abandon", $"sm-q1-a00.L{level}{(rehearsal ? ".r1" : "")}").ExitCode);
+            Assert.Equal(0, CliRun.Live(folder, "--dir", "ws", "abandon", $"sm-q1-a00.res{level}{(rehearsal ? ".r1" : "")}").ExitCode);
         }
 
         return ws;

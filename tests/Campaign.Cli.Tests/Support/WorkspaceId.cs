@@ -14,6 +14,6 @@ public static class WorkspaceId
         return (string)command.ExecuteScalar()!;
     }
 
-    /// <summary>The job name of a run's segment in that workspace.</summary>
-    public static string JobName(string workspaceFolder, string runId, int segment) => Campaign.Batch.JobName.For(Of(workspaceFolder), runId, segment);
+    /// <summary>The job name of a run's leg in that workspace.</summary>
+    public static string JobName(string workspaceFolder, string runId, int leg) => Campaign.Batch.JobName.For(Of(workspaceFolder), runId, leg);
 }

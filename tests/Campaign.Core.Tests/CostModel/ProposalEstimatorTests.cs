@@ -32,14 +32,14 @@ public class ProposalEstimatorTests
     }
 
     [Fact]
-    public void Given_costs_give_wall_time_segments_node_hours_and_charges_by_the_machine_policy()
+    public void Given_costs_give_wall_time_legs_node_hours_and_charges_by_the_machine_policy()
     {
-        // 100 cores on 64-core nodes charged whole: 2 nodes. 5000 core-hours -> 50 h wall; 50 / (48 - 0.5) -> 2 segments;
+        // 100 cores on 64-core nodes charged whole: 2 nodes. 5000 core-hours -> 50 h wall; 50 / (48 - 0.5) -> 2 legs;
         // node-hours 100; charged 50 h x 128 cores = 6400.
         var estimate = ProposalEstimator.Estimate(new[] { Candidate("a", "whole", 100, 5000) }, Machines, null, StorageModel.RuleOfThumb, new LengthSettings(), new EstimateOptions());
         var row = Assert.Single(estimate.Runs);
         Assert.Equal(50, row.WallHours, 9);
-        Assert.Equal(2, row.Segments);
+        Assert.Equal(2, row.Legs);
         Assert.Equal(100, row.NodeHours, 9);
         Assert.Equal(6400, row.ChargedCoreHours, 9);
         Assert.Equal(5000, estimate.Total.Median, 9);
@@ -47,7 +47,7 @@ public class ProposalEstimatorTests
         // Shared nodes with a 0.8 factor: charged = 0.8 x consumed.
         var shared = ProposalEstimator.Estimate(new[] { Candidate("b", "shared", 100, 5000) }, Machines, null, StorageModel.RuleOfThumb, new LengthSettings(), new EstimateOptions());
         Assert.Equal(4000, shared.Runs[0].ChargedCoreHours, 9);
-        Assert.Equal(3, shared.Runs[0].Segments); // 50 h / 23.5 h
+        Assert.Equal(3, shared.Runs[0].Legs); // 50 h / 23.5 h
     }
 
     [Fact]

@@ -14,16 +14,16 @@ public class CampaignForecasterTests
 
     private static ForecastResult Forecast(IReadOnlyList<ForecastRun> runs, MachineProfile machine, Allocation? allocation = null, double failure = 0, int replicas = 200, double already = 0) =>
         CampaignForecaster.Run(runs, new Dictionary<string, ForecastMachine> { ["m"] = new(machine, allocation, already) }, null, Start,
-            new ForecastOptions { Replicas = replicas, SegmentFailureProbability = failure, Seed = 7 });
+            new ForecastOptions { Replicas = replicas, LegFailureProbability = failure, Seed = 7 });
 
     [Fact]
-    public void Without_waits_or_failures_a_run_ends_after_exactly_its_wall_time_in_whole_segments()
+    public void Without_waits_or_failures_a_run_ends_after_exactly_its_wall_time_in_whole_legs()
     {
-        // 100 core-hours on 1 core = 100 h; segments of 24 - 0.5 = 23.5 h: four full ones and one of 6 h.
+        // 100 core-hours on 1 core = 100 h; legs of 24 - 0.5 = 23.5 h: four full ones and one of 6 h.
         var result = Forecast(new[] { Run("a", 100) }, Machine());
         Assert.Equal(Start.AddHours(100), result.Finish.P10);
         Assert.Equal(Start.AddHours(100), result.Finish.P90);
-        Assert.Equal(5, result.Runs[0].MeanSegments, 12);
+        Assert.Equal(5, result.Runs[0].MeanLegs, 12);
         Assert.Equal(1, result.ProbabilityFits);
     }
 
@@ -45,7 +45,7 @@ public class CampaignForecasterTests
     [Fact]
     public void Queue_waits_follow_the_log_normal_with_the_profiles_median_and_90th_percentile()
     {
-        // One single-segment run of 1 h after a log-normal wait with median 2 h and P90 8 h: the finish
+        // One single-leg run of 1 h after a log-normal wait with median 2 h and P90 8 h: the finish
         // percentiles are 3 h and 9 h (log-normal quantiles: median exp(mu), P90 exp(mu + 1.2816 sigma)).
         var result = Forecast(new[] { Run("a", 1) }, Machine(waitMedian: 2, waitP90: 8), replicas: 20000);
         Assert.Equal(3, (result.Finish.P50!.Value - Start).TotalHours, 0.15);
@@ -53,12 +53,12 @@ public class CampaignForecasterTests
     }
 
     [Fact]
-    public void Failed_segments_are_repeated_as_often_as_a_geometric_law_says()
+    public void Failed_legs_are_repeated_as_often_as_a_geometric_law_says()
     {
-        // Four full segments needed, each failing with p = 0.2: the expected number of segments is 4/(1 - p) = 5
+        // Four full legs needed, each failing with p = 0.2: the expected number of legs is 4/(1 - p) = 5
         // (mean of a negative binomial count of trials).
         var result = Forecast(new[] { Run("a", 94) }, Machine(), failure: 0.2, replicas: 20000);
-        Assert.Equal(5, result.Runs[0].MeanSegments, 0.05);
+        Assert.Equal(5, result.Runs[0].MeanLegs, 0.05);
     }
 
     [Fact]
@@ -82,9 +82,9 @@ public class CampaignForecasterTests
             new AllocationWindow(new DateOnly(2027, 1, 3), new DateOnly(2027, 12, 31), 1000),
         };
         var allocation = new Allocation("m", 1030, AllocationUnit.CoreHours, new DateOnly(2027, 1, 1), new DateOnly(2027, 12, 31), windows);
-        // 100 h on 1 core, segments of 23.5 h charged at worst 24 h. The first window (30 core-hours) takes the
-        // first segment (0-23.5 h); a second would risk 23.5 + 24 > 30, so it waits for the second window (Jan 3,
-        // hour 48), where the remaining 76.5 h run through: finish at 124.5 h. Charges land where segments end.
+        // 100 h on 1 core, legs of 23.5 h charged at worst 24 h. The first window (30 core-hours) takes the
+        // first leg (0-23.5 h); a second would risk 23.5 + 24 > 30, so it waits for the second window (Jan 3,
+        // hour 48), where the remaining 76.5 h run through: finish at 124.5 h. Charges land where legs end.
         var result = Forecast(new[] { Run("a", 100) }, Machine(), allocation);
         Assert.Equal(Start.AddHours(124.5), result.Finish.P50);
         Assert.Equal(23.5, result.Windows[0].MeanCharge, 9);
@@ -95,9 +95,9 @@ public class CampaignForecasterTests
     }
 
     [Fact]
-    public void Running_segments_count_at_their_worst_case_against_a_window()
+    public void Running_legs_count_at_their_worst_case_against_a_window()
     {
-        // Two runs of one segment each (10 h, worst case 24 h on 1 core) and a 40 core-hour window: the second may
+        // Two runs of one leg each (10 h, worst case 24 h on 1 core) and a 40 core-hour window: the second may
         // start only after the first has ended and been charged its 10 h (10 + 24 <= 40), as the tracker's guard.
         var windows = new[]
         {

@@ -15,17 +15,17 @@ public class CampaignLedgerTests
         new AllocationWindow(new DateOnly(2027, 4, 1), new DateOnly(2027, 6, 30), 2_500),
     });
 
-    private static SegmentCharge Ended(string machine, int month, double charged) =>
-        new("r", machine, SegmentPhase.Ended, 999, charged, new DateTimeOffset(2027, month, 2, 0, 0, 0, TimeSpan.Zero), null, new DateTimeOffset(2027, month, 3, 0, 0, 0, TimeSpan.Zero));
+    private static LegCharge Ended(string machine, int month, double charged) =>
+        new("r", machine, LegPhase.Ended, 999, charged, new DateTimeOffset(2027, month, 2, 0, 0, 0, TimeSpan.Zero), null, new DateTimeOffset(2027, month, 3, 0, 0, 0, TimeSpan.Zero));
 
-    private static SegmentCharge Open(string machine, double worst) =>
-        new("r", machine, SegmentPhase.Submitted, worst, null, new DateTimeOffset(2027, 2, 1, 0, 0, 0, TimeSpan.Zero), null, null);
+    private static LegCharge Open(string machine, double worst) =>
+        new("r", machine, LegPhase.Submitted, worst, null, new DateTimeOffset(2027, 2, 1, 0, 0, 0, TimeSpan.Zero), null, null);
 
-    private static CampaignLedger Ledger(params SegmentCharge[] segments) =>
-        new(new[] { Year }, new Dictionary<string, MachineProfile> { ["box"] = Box, ["desk"] = Desk }, segments);
+    private static CampaignLedger Ledger(params LegCharge[] legs) =>
+        new(new[] { Year }, new Dictionary<string, MachineProfile> { ["box"] = Box, ["desk"] = Desk }, legs);
 
     [Fact]
-    public void Spent_is_charged_by_the_day_segments_end_and_committed_is_the_open_worst_case()
+    public void Spent_is_charged_by_the_day_legs_end_and_committed_is_the_open_worst_case()
     {
         var ledger = Ledger(Ended("box", 1, 100), Ended("box", 2, 200), Ended("box", 5, 400), Ended("desk", 1, 7), Open("box", 50), Open("box", 25));
         Assert.Equal(300, ledger.Spent("box", new DateOnly(2027, 1, 1), new DateOnly(2027, 3, 31)));
@@ -38,7 +38,7 @@ public class CampaignLedgerTests
     }
 
     [Fact]
-    public void A_segment_fits_only_within_the_allocation_less_the_reserve_and_within_the_current_window()
+    public void A_leg_fits_only_within_the_allocation_less_the_reserve_and_within_the_current_window()
     {
         var ledger = Ledger(Ended("box", 1, 2_000), Open("box", 300));
         var february = new DateOnly(2027, 2, 10);
@@ -46,9 +46,9 @@ public class CampaignLedgerTests
         Assert.True(ledger.Allows("box", 200, february, reserve: 0).Allowed);
         var refused = ledger.Allows("box", 201, february, reserve: 0);
         Assert.False(refused.Allowed);
-        Assert.Equal("waiting for budget: the next segment may charge 201 core-hours; 200 left in the window 2027-01-01..2027-03-31 on box", refused.Why);
+        Assert.Equal("waiting for budget: the next leg may charge 201 core-hours; 200 left in the window 2027-01-01..2027-03-31 on box", refused.Why);
         // The allocation: 10,000 - 2,000 - 300 - reserve 7,600 = 100 left.
-        Assert.Equal("waiting for budget: the next segment may charge 150 core-hours; 100 left on box (allocation 10,000, reserve 7,600)", ledger.Allows("box", 150, february, reserve: 7_600).Why);
+        Assert.Equal("waiting for budget: the next leg may charge 150 core-hours; 100 left on box (allocation 10,000, reserve 7,600)", ledger.Allows("box", 150, february, reserve: 7_600).Why);
         // In Q2 the window starts afresh.
         Assert.True(ledger.Allows("box", 2_000, new DateOnly(2027, 4, 2), reserve: 0).Allowed);
     }

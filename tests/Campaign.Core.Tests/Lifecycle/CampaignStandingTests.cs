@@ -14,7 +14,7 @@ public class CampaignStandingTests
         new(Binary, new EstimateRow(config, level, "run", "box", 64, 1000, cost, cost, cost, cost, 10, 1, 10, cost, cost, 1, 1, "model", Array.Empty<string>(), 0.1, 30, 1), cost, 1000);
 
     private static RunRecord Run(string id, RunState state, double progress = 0, bool rehearsal = false, string machine = "box") =>
-        new(id, id.Split('.')[0], int.Parse(id.Split('.')[1][1..], System.Globalization.CultureInfo.InvariantCulture), machine, 64, Binary, 1000, state, "", rehearsal, progress, null);
+        new(id, id.Split('.')[0], int.Parse(id.Split('.')[1][3..], System.Globalization.CultureInfo.InvariantCulture), machine, 64, Binary, 1000, state, "", rehearsal, progress, null);
 
     private static PlanVersion Plan(params PlanEntry[] entries) =>
         new(1, DateTimeOffset.UnixEpoch, "coverage", 0.5, 1, 1, "m", "c.csv", entries, Array.Empty<CarriedConfiguration>(), new Dictionary<string, double>());
@@ -25,23 +25,23 @@ public class CampaignStandingTests
         var plan = Plan(Entry("a", 1, 100), Entry("a", 2, 200), Entry("b", 1, 50), Entry("c", 1, 10), Entry("d", 1, 10));
         var runs = new[]
         {
-            Run("a.L1", RunState.Running, progress: 250),
-            Run("a.L2.r1", RunState.Finished, progress: 1000, rehearsal: true),
-            Run("b.L1", RunState.Finished, progress: 1000),
-            Run("c.L1", RunState.Held, progress: 500),
-            Run("d.L1", RunState.Failed),
-            Run("x.L1", RunState.Queued),
+            Run("a.res1", RunState.Running, progress: 250),
+            Run("a.res2.r1", RunState.Finished, progress: 1000, rehearsal: true),
+            Run("b.res1", RunState.Finished, progress: 1000),
+            Run("c.res1", RunState.Held, progress: 500),
+            Run("d.res1", RunState.Failed),
+            Run("x.res1", RunState.Queued),
         };
         var standing = CampaignStanding.Of(plan, runs);
         var status = standing.Runs.ToDictionary(s => s.Entry.RunId, s => s.Status);
-        Assert.Equal(PlanRunStatus.Active, status["a.L1"]);
-        Assert.Equal(PlanRunStatus.ToCome, status["a.L2"]); // its rehearsal finished; the real run is still to come
-        Assert.Equal(PlanRunStatus.Finished, status["b.L1"]);
-        Assert.Equal(PlanRunStatus.Held, status["c.L1"]);
-        Assert.Equal(PlanRunStatus.Abandoned, status["d.L1"]);
-        Assert.Equal(new[] { "a.L1", "a.L2", "c.L1" }, standing.Left.Select(s => s.Entry.RunId));
-        Assert.Equal("x.L1", Assert.Single(standing.OutsidePlan).RunId);
-        Assert.Equal("a.L2.r1", Assert.Single(standing.Rehearsals).RunId);
+        Assert.Equal(PlanRunStatus.Active, status["a.res1"]);
+        Assert.Equal(PlanRunStatus.ToCome, status["a.res2"]); // its rehearsal finished; the real run is still to come
+        Assert.Equal(PlanRunStatus.Finished, status["b.res1"]);
+        Assert.Equal(PlanRunStatus.Held, status["c.res1"]);
+        Assert.Equal(PlanRunStatus.Abandoned, status["d.res1"]);
+        Assert.Equal(new[] { "a.res1", "a.res2", "c.res1" }, standing.Left.Select(s => s.Entry.RunId));
+        Assert.Equal("x.res1", Assert.Single(standing.OutsidePlan).RunId);
+        Assert.Equal("a.res2.r1", Assert.Single(standing.Rehearsals).RunId);
     }
 
     [Fact]
@@ -50,10 +50,10 @@ public class CampaignStandingTests
         var plan = Plan(Entry("a", 1, 100), Entry("a", 2, 200), Entry("b", 1, 50), Entry("d", 1, 10), Entry("e", 1, 40));
         var runs = new[]
         {
-            Run("a.L1", RunState.Running, progress: 250, machine: "desk"),
-            Run("b.L1", RunState.Finished, progress: 1000),
-            Run("d.L1", RunState.Failed),
-            Run("e.L1.r1", RunState.Finished, progress: 1000, rehearsal: true),
+            Run("a.res1", RunState.Running, progress: 250, machine: "desk"),
+            Run("b.res1", RunState.Finished, progress: 1000),
+            Run("d.res1", RunState.Failed),
+            Run("e.res1.r1", RunState.Finished, progress: 1000, rehearsal: true),
         };
         var standing = CampaignStanding.Of(plan, runs);
         var carried = standing.Started().ToDictionary(c => c.ConfigId);

@@ -6,28 +6,27 @@ public class TrackingRulesTests
 {
     private static readonly TrackingSettings Settings = new() { RetryLimit = 2, FailuresWithoutProgress = 2 };
 
-    private static SegmentEnd End(string ending, double before, double after, int withProgress = 0, int without = 0, bool done = false) =>
+    private static LegEnd End(string ending, double before, double after, int withProgress = 0, int without = 0, bool done = false) =>
         new(ending, before, after, 5000, done, withProgress, without);
 
     [Theory]
-    [InlineData("completed")]
-    [InlineData("timed_out")]
-    [InlineData("failed")]
+    [InlineData("succeeded")]
+    [InlineData("out_of_time")]
+    [InlineData("crashed")]
     public void Reaching_the_target_or_the_done_marker_finishes_whatever_the_ending(string ending)
     {
-        Assert.Equal(NextStep.Finish, SegmentDecision.Decide(End(ending, 4000, 5000), Settings).Step);
-        Assert.Equal(NextStep.Finish, SegmentDecision.Decide(End(ending, 100, 200, done: true), Settings).Step);
+        Assert.Equal(NextStep.Finish, LegDecision.Decide(End(ending, 4000, 5000), Settings).Step);
+        Assert.Equal(NextStep.Finish, LegDecision.Decide(End(ending, 100, 200, done: true), Settings).Step);
     }
 
     [Theory]
-    [InlineData("timed_out")]
-    [InlineData("preempted")]
-    [InlineData("node_failed")]
-    [InlineData("requeued")]
-    [InlineData("cancelled_for_stall")]
+    [InlineData("out_of_time")]
+    [InlineData("interrupted")]
+    [InlineData("succeeded")]
+    [InlineData("stopped_for_stall")]
     public void Interruptions_continue_and_reset_the_failure_count(string ending)
     {
-        var (step, _, withProgress, without) = SegmentDecision.Decide(End(ending, 1000, 2000, withProgress: 2, without: 1), Settings);
+        var (step, _, withProgress, without) = LegDecision.Decide(End(ending, 1000, 2000, withProgress: 2, without: 1), Settings);
         Assert.Equal(NextStep.Continue, step);
         Assert.Equal(0, withProgress);
         Assert.Equal(0, without);
@@ -36,11 +35,11 @@ public class TrackingRulesTests
     [Fact]
     public void Failures_after_progress_retry_up_to_the_limit_then_hold()
     {
-        Assert.Equal((NextStep.Continue, 1), Pick(SegmentDecision.Decide(End("failed", 1000, 1500), Settings)));
-        Assert.Equal((NextStep.Continue, 2), Pick(SegmentDecision.Decide(End("failed", 1000, 1500, withProgress: 1), Settings)));
-        var (step, why, _, _) = SegmentDecision.Decide(End("out_of_memory", 1000, 1500, withProgress: 2), Settings);
+        Assert.Equal((NextStep.Continue, 1), Pick(LegDecision.Decide(End("crashed", 1000, 1500), Settings)));
+        Assert.Equal((NextStep.Continue, 2), Pick(LegDecision.Decide(End("crashed", 1000, 1500, withProgress: 1), Settings)));
+        var (step, why, _, _) = LegDecision.Decide(End("out_of_memory", 1000, 1500, withProgress: 2), Settings);
         Assert.Equal(NextStep.Hold, step);
-        Assert.Equal("segment out of memory 3 times in a row (retry limit 2)", why);
+        Assert.Equal("leg out of memory 3 times in a row (retry limit 2)", why);
 
         static (NextStep, int) Pick((NextStep Step, string Why, int WithProgress, int Without) d) => (d.Step, d.WithProgress);
     }
@@ -48,13 +47,13 @@ public class TrackingRulesTests
     [Fact]
     public void Repeated_failures_without_progress_hold_the_run()
     {
-        Assert.Equal(NextStep.Continue, SegmentDecision.Decide(End("failed", 1000, 1000), Settings).Step);
-        var (step, why, _, without) = SegmentDecision.Decide(End("launch_failed", 1000, 1000, without: 1), Settings);
+        Assert.Equal(NextStep.Continue, LegDecision.Decide(End("crashed", 1000, 1000), Settings).Step);
+        var (step, why, _, without) = LegDecision.Decide(End("launch_failed", 1000, 1000, without: 1), Settings);
         Assert.Equal(NextStep.Hold, step);
         Assert.Equal(2, without);
-        Assert.Equal("segment launch failed without progress 2 times in a row (t = 1000 M)", why);
+        Assert.Equal("leg launch failed without progress 2 times in a row (t = 1000 M)", why);
         // A clean exit that made no progress counts as a failure without progress.
-        Assert.Equal(NextStep.Hold, SegmentDecision.Decide(End("completed", 1000, 1000, without: 1), Settings).Step);
+        Assert.Equal(NextStep.Hold, LegDecision.Decide(End("succeeded", 1000, 1000, without: 1), Settings).Step);
     }
 
     [Fact]
@@ -107,17 +106,17 @@ public class TrackingRulesTests
     }
 
     [Fact]
-    public void A_segment_ended_by_the_warning_before_any_progress_is_too_short_not_a_failure_until_it_keeps_happening()
+    public void A_leg_ended_by_the_warning_before_any_progress_is_too_short_not_a_failure_until_it_keeps_happening()
     {
         var settings = new TrackingSettings();
-        var end = new SegmentEnd("too_short", 300, 300, 5000, false, 0, 1, 0);
-        var (step, why, withProgress, without) = SegmentDecision.Decide(end, settings);
+        var end = new LegEnd("too_short", 300, 300, 5000, false, 0, 1, 0);
+        var (step, why, withProgress, without) = LegDecision.Decide(end, settings);
         Assert.Equal(NextStep.Continue, step);
         Assert.Equal((0, 1), (withProgress, without)); // the failure counters are untouched
-        Assert.StartsWith("segment too short", why, StringComparison.Ordinal);
-        var fifth = SegmentDecision.Decide(end with { ShortSegments = SegmentDecision.ShortSegmentLimit - 1 }, settings);
+        Assert.StartsWith("leg too short", why, StringComparison.Ordinal);
+        var fifth = LegDecision.Decide(end with { ShortLegs = LegDecision.ShortLegLimit - 1 }, settings);
         Assert.Equal(NextStep.Hold, fifth.Step);
-        Assert.Contains("raise segment_minutes", fifth.Why, StringComparison.Ordinal);
+        Assert.Contains("raise leg_minutes", fifth.Why, StringComparison.Ordinal);
     }
 
     [Theory]
@@ -141,26 +140,26 @@ public class TrackingRulesTests
         Assert.Equal(50, Health.FirstNonFinite(points)!.Value.Time);
         Assert.Null(Health.FirstNonFinite(ProgressSeries.FromColumns("10 1e-6\n20\n")));
 
-        var end = new SegmentEnd("completed", 0, 400, 5000, DoneMarker: true, 0, 0, 0, Health.NonFiniteReason(points[1]));
-        var (step, why, _, _) = SegmentDecision.Decide(end, new TrackingSettings());
+        var end = new LegEnd("succeeded", 0, 400, 5000, DoneMarker: true, 0, 0, 0, Health.NonFiniteReason(points[1]));
+        var (step, why, _, _) = LegDecision.Decide(end, new TrackingSettings());
         Assert.Equal(NextStep.Hold, step);
         Assert.Equal("constraint norm not finite (nan at t = 50 M): the run has gone bad", why);
     }
 
     [Fact]
-    public void Segments_that_run_into_their_wall_time_without_progress_count_as_failures_without_progress()
+    public void Legs_that_run_into_their_wall_time_without_progress_count_as_failures_without_progress()
     {
         // Regression (faults issue, item 10): a code that ignores the warning and never advances was resubmitted for ever.
         var settings = new TrackingSettings();
-        var first = SegmentDecision.Decide(new SegmentEnd("timed_out", 300, 300, 5000, false, 0, 0), settings);
+        var first = LegDecision.Decide(new LegEnd("out_of_time", 300, 300, 5000, false, 0, 0), settings);
         Assert.Equal((NextStep.Continue, 1), (first.Step, first.FailuresWithoutProgress));
-        var second = SegmentDecision.Decide(new SegmentEnd("timed_out", 300, 300, 5000, false, 0, first.FailuresWithoutProgress), settings);
+        var second = LegDecision.Decide(new LegEnd("out_of_time", 300, 300, 5000, false, 0, first.FailuresWithoutProgress), settings);
         Assert.Equal(NextStep.Hold, second.Step);
-        Assert.StartsWith("segment timed out without progress 2 times in a row", second.Why, StringComparison.Ordinal);
+        Assert.StartsWith("leg ran out of time without progress 2 times in a row", second.Why, StringComparison.Ordinal);
 
-        // With progress a timeout is the normal end of a segment; a node failure is the machine's, not the run's.
-        Assert.Equal((NextStep.Continue, 0), Pick(SegmentDecision.Decide(new SegmentEnd("timed_out", 300, 900, 5000, false, 0, 1), settings)));
-        Assert.Equal((NextStep.Continue, 1), Pick(SegmentDecision.Decide(new SegmentEnd("node_failed", 300, 300, 5000, false, 0, 1), settings)));
+        // With progress a timeout is the normal end of a leg; a node failure is the machine's, not the run's.
+        Assert.Equal((NextStep.Continue, 0), Pick(LegDecision.Decide(new LegEnd("out_of_time", 300, 900, 5000, false, 0, 1), settings)));
+        Assert.Equal((NextStep.Continue, 1), Pick(LegDecision.Decide(new LegEnd("interrupted", 300, 300, 5000, false, 0, 1), settings)));
 
         static (NextStep, int) Pick((NextStep Step, string Why, int WithProgress, int Without) d) => (d.Step, d.Without);
     }

@@ -7,10 +7,10 @@ namespace Campaign.Core.Tracking;
 /// is known, ended (with its charge) when the batch system says it is over. Its state changes only through its
 /// methods; the store maps it once.
 /// </summary>
-public sealed class JobSegment
+public sealed class JobLeg
 {
-    /// <summary>Creates an intent: a segment about to be submitted.</summary>
-    public JobSegment(string runId, int number, string jobName, double worstCase, TimeSpan wall, double startT, string? restartFrom, DateTimeOffset at)
+    /// <summary>Creates an intent: a leg about to be submitted.</summary>
+    public JobLeg(string runId, int number, string jobName, double worstCase, TimeSpan wall, double startT, string? restartFrom, DateTimeOffset at)
     {
         RunId = runId;
         Number = number;
@@ -38,7 +38,7 @@ public sealed class JobSegment
     public string? JobId { get; private set; }
 
     /// <summary>Intent, submitted or ended.</summary>
-    public SegmentPhase Phase { get; private set; } = SegmentPhase.Intent;
+    public LegPhase Phase { get; private set; } = LegPhase.Intent;
 
     /// <summary>The normalised job state last seen (a batch-layer name; empty before any).</summary>
     public string JobState { get; private set; } = "";
@@ -83,10 +83,10 @@ public sealed class JobSegment
     public DateTimeOffset? EndedAt { get; private set; }
 
     /// <summary>True until it has ended.</summary>
-    public bool IsOpen => Phase != SegmentPhase.Ended;
+    public bool IsOpen => Phase != LegPhase.Ended;
 
-    /// <summary>A segment as stored (the store's mapping).</summary>
-    public static JobSegment Restore(long id, string runId, int number, string jobName, string? jobId, SegmentPhase phase, string jobState, string nativeState, int? exitCode, int? signal, TimeSpan? elapsed,
+    /// <summary>A leg as stored (the store's mapping).</summary>
+    public static JobLeg Restore(long id, string runId, int number, string jobName, string? jobId, LegPhase phase, string jobState, string nativeState, int? exitCode, int? signal, TimeSpan? elapsed,
         double? charged, double worstCase, TimeSpan wall, double startT, string? restartFrom, string? cancelReason, DateTimeOffset submittedAt, DateTimeOffset? startedAt, DateTimeOffset? endedAt) =>
         new(runId, number, jobName, worstCase, wall, startT, restartFrom, submittedAt)
         {
@@ -108,7 +108,7 @@ public sealed class JobSegment
     public void Submitted(string jobId, string jobState)
     {
         JobId = jobId;
-        Phase = SegmentPhase.Submitted;
+        Phase = LegPhase.Submitted;
         JobState = jobState;
     }
 
@@ -129,7 +129,7 @@ public sealed class JobSegment
     /// <summary>It is over: its final state and its charge.</summary>
     public void End(string jobState, string nativeState, int? exitCode, int? signal, TimeSpan? elapsed, double charged, DateTimeOffset at)
     {
-        Phase = SegmentPhase.Ended;
+        Phase = LegPhase.Ended;
         JobState = jobState;
         NativeState = nativeState;
         ExitCode = exitCode;

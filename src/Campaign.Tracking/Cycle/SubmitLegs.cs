@@ -8,18 +8,18 @@ using Campaign.Store;
 namespace Campaign.Tracking.Cycle;
 
 /// <summary>
-/// Step 5: every run that needs its next segment (or a pre-queued one) gets it, oldest plan position first, if the
+/// Step 5: every run that needs its next leg (or a pre-queued one) gets it, oldest plan position first, if the
 /// budget rule allows its worst case (<see cref="CampaignLedger.Allows"/>); else it waits with the reason. A
 /// submission records its intent first and its job id after. A refusal of the request holds the run; a failure of
 /// the machine leaves the run as it was and skips the machine for the rest of the cycle.
 /// </summary>
-internal static class SubmitSegments
+internal static class SubmitLegs
 {
     public static async Task RunAsync(CycleContext c, CancellationToken cancellationToken)
     {
-        var segments = TrackingStore.Segments(c.Db);
-        var openByRun = segments.Where(s => s.IsOpen).ToLookup(s => s.RunId, StringComparer.Ordinal);
-        var lastNumber = segments.GroupBy(s => s.RunId, StringComparer.Ordinal).ToDictionary(g => g.Key, g => g.Max(s => s.Number), StringComparer.Ordinal);
+        var legs = TrackingStore.Legs(c.Db);
+        var openByRun = legs.Where(s => s.IsOpen).ToLookup(s => s.RunId, StringComparer.Ordinal);
+        var lastNumber = legs.GroupBy(s => s.RunId, StringComparer.Ordinal).ToDictionary(g => g.Key, g => g.Max(s => s.Number), StringComparer.Ordinal);
         var ledger = new CampaignLedger(c.Workspace.Config.Allocations, c.Workspace.Machines, TrackingStore.Charges(c.Db));
         var today = DateOnly.FromDateTime(c.Now.UtcDateTime);
         foreach (var run in c.Runs.Values.OrderBy(r => r.Position).ToList())
@@ -38,7 +38,7 @@ internal static class SubmitSegments
             }
 
             var profile = c.Workspace.Machine(run.Machine);
-            var wallHours = c.Settings.SegmentMinutes is { } minutes ? minutes / 60 : profile.WallLimitHours;
+            var wallHours = c.Settings.LegMinutes is { } minutes ? minutes / 60 : profile.WallLimitHours;
             var worst = profile.ChargedCoreHours(run.Cores, wallHours);
             var verdict = ledger.Allows(run.Machine, worst, today, c.Settings.ReserveCoreHours);
             if (!verdict.Allowed)
@@ -61,14 +61,14 @@ internal static class SubmitSegments
             }
             catch (Exception e) when (e is Microsoft.Data.Sqlite.SqliteException { SqliteErrorCode: 19 } or DirectoryNotFoundException or UnauthorizedAccessException)
             {
-                // One run's trouble (a constraint its segment breaks, a run folder that cannot be written) never
+                // One run's trouble (a constraint its leg breaks, a run folder that cannot be written) never
                 // stops the cycle for the others; it is reported and tried again next cycle.
-                c.Messages.Add($"{run.RunId}: segment {number} not submitted this cycle: {e.Message}");
+                c.Messages.Add($"{run.RunId}: leg {number} not submitted this cycle: {e.Message}");
             }
         }
     }
 
-    /// <summary>Submits one segment (intent first, job id after); returns true when its worst case is now committed.</summary>
+    /// <summary>Submits one leg (intent first, job id after); returns true when its worst case is now committed.</summary>
     private static async Task<bool> Submit(CycleContext c, TrackedRun run, MachineProfile profile, double wallHours, double worst, int number, string? afterAny, CancellationToken cancellationToken)
     {
         var folder = c.Folder(run);
@@ -79,7 +79,7 @@ internal static class SubmitSegments
         {
             ["CAMPAIGN_RUN_ID"] = run.RunId,
             ["CAMPAIGN_RUN_DIR"] = folder.Path,
-            ["CAMPAIGN_SEGMENT"] = number.ToString(CultureInfo.InvariantCulture),
+            ["CAMPAIGN_LEG"] = number.ToString(CultureInfo.InvariantCulture),
         };
         if (afterAny is not null)
         {
@@ -94,10 +94,10 @@ internal static class SubmitSegments
         var warning = settings.WarningSignal.Length > 0 && settings.WarningSeconds > 0 && settings.WarningSeconds < wallHours * 3600
             ? new WarningSignal(settings.WarningSignal, settings.WarningSeconds)
             : null;
-        var logBase = Path.Combine(folder.Path, "logs", "segment-" + number.ToString("D3", CultureInfo.InvariantCulture));
+        var logBase = Path.Combine(folder.Path, "logs", "leg-" + number.ToString("D3", CultureInfo.InvariantCulture));
         var request = new JobRequest(name, Path.GetFullPath(settings.Script, c.Workspace.Root), folder.Path, run.Cores, TimeSpan.FromHours(wallHours),
             logBase + ".out", logBase + ".err", environment, afterAny, warning);
-        var segment = new JobSegment(run.RunId, number, name, worst, TimeSpan.FromHours(wallHours), run.Progress, afterAny is not null ? "newest at start" : checkpoint?.Path, c.Now);
+        var leg = new JobLeg(run.RunId, number, name, worst, TimeSpan.FromHours(wallHours), run.Progress, afterAny is not null ? "newest at start" : checkpoint?.Path, c.Now);
 
         // 1. The intent, before the batch system hears of it.
         var before = (run.State, run.Reason);
@@ -105,9 +105,9 @@ internal static class SubmitSegments
         var passed = skipped.Count == 0 ? "" : "; passed over " + string.Join(", ", skipped.Select(s => Path.GetFileName(s.File.Path) + " (" + s.Why + ")"));
         c.Commit(tx =>
         {
-            TrackingStore.Insert(c.Db, tx, segment);
+            TrackingStore.Insert(c.Db, tx, leg);
             run.UseCheckpoint(afterAny is null ? checkpoint?.Path : null);
-            var why = afterAny is null ? $"submitting segment {number} {restart}{passed}" : $"pre-queueing segment {number} after job {afterAny}";
+            var why = afterAny is null ? $"submitting leg {number} {restart}{passed}" : $"pre-queueing leg {number} after job {afterAny}";
             c.Save(tx, run, run.Submitting(why, prequeued: afterAny is not null, c.Now));
         });
 
@@ -123,7 +123,7 @@ internal static class SubmitSegments
             c.Answered.Add(run.Machine);
             c.Commit(tx =>
             {
-                TrackingStore.DeleteIntent(c.Db, tx, segment.Id);
+                TrackingStore.DeleteIntent(c.Db, tx, leg.Id);
                 c.Save(tx, run, run.Hold("submission rejected: " + BatchErrorText.FirstLine(e.Message), c.Now, "submission rejected: " + e.Message));
             });
             c.Held++;
@@ -134,8 +134,8 @@ internal static class SubmitSegments
             // The machine's fault (its commands or configuration): the run is left as it was before this cycle.
             c.Commit(tx =>
             {
-                TrackingStore.DeleteIntent(c.Db, tx, segment.Id);
-                c.Save(tx, run, run.Restore(before.State, before.Reason, $"{run.Machine} unreachable: segment {number} not submitted; left as it was", c.Now));
+                TrackingStore.DeleteIntent(c.Db, tx, leg.Id);
+                c.Save(tx, run, run.Restore(before.State, before.Reason, $"{run.Machine} unreachable: leg {number} not submitted; left as it was", c.Now));
             });
             c.MachineFault(run.Machine, $"submitting {name}", e);
             return false;
@@ -148,8 +148,8 @@ internal static class SubmitSegments
         }
 
         // 2. The job id, after.
-        segment.Submitted(id, JobState.Pending.ToString());
-        c.Commit(tx => TrackingStore.Save(c.Db, tx, segment));
+        leg.Submitted(id, JobState.Waiting.Name());
+        c.Commit(tx => TrackingStore.Save(c.Db, tx, leg));
         c.Submitted++;
         return true;
     }

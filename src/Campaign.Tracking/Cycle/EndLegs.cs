@@ -6,37 +6,37 @@ using Campaign.Store;
 namespace Campaign.Tracking.Cycle;
 
 /// <summary>
-/// Step 3: a segment that is over is charged (its elapsed time on its charged cores, the worst case when the batch
+/// Step 3: a leg that is over is charged (its elapsed time on its charged cores, the worst case when the batch
 /// system does not say), and its run decides: finish (written into the run logs unless a rehearsal), continue from
-/// the newest valid checkpoint, or hold. Other open segments of a finished or held run are cancelled.
+/// the newest valid checkpoint, or hold. Other open legs of a finished or held run are cancelled.
 /// </summary>
-internal static class EndSegments
+internal static class EndLegs
 {
-    public static async Task EndAsync(CycleContext c, TrackedRun run, JobSegment segment, JobStatus status, CancellationToken cancellationToken)
+    public static async Task EndAsync(CycleContext c, TrackedRun run, JobLeg leg, JobStatus status, CancellationToken cancellationToken)
     {
         var profile = c.Workspace.Machine(run.Machine);
         var charged = status.Elapsed is { } e
             ? profile.ChargedCoreHours(status.ChargedCores ?? run.Cores, e.TotalHours)
-            : segment.WorstCase; // no elapsed time known: charge the worst case rather than nothing
+            : leg.WorstCase; // no elapsed time known: charge the worst case rather than nothing
         var folder = c.Folder(run);
         var points = folder.Progress();
         var latest = points.Count > 0 ? Math.Max(points[^1].Time, run.Progress) : run.Progress;
-        var others = TrackingStore.SegmentsOf(c.Db, run.RunId).Where(s => s.IsOpen && s.Id != segment.Id).ToList();
-        var ending = Ending(status, segment);
-        if (latest <= segment.StartT && WarnedBeforeProgress(c.Settings, segment, status, ending))
+        var others = TrackingStore.LegsOf(c.Db, run.RunId).Where(s => s.IsOpen && s.Id != leg.Id).ToList();
+        var ending = Ending(status, leg);
+        if (latest <= leg.StartT && WarnedBeforeProgress(c.Settings, leg, status, ending))
         {
             ending = "too_short";
         }
 
-        var exit = status.ExitCode is null ? "" : $", exit {status.ExitCode}:{status.Signal ?? 0}";
+        var exit = JobStates.Exit(status.ExitCode, status.Signal) is { Length: > 0 } words ? ", " + words : "";
         var step = NextStep.Continue;
         c.Commit(tx =>
         {
-            segment.End(status.State.ToString(), status.NativeState, status.ExitCode, status.Signal, status.Elapsed, charged, c.Now);
-            TrackingStore.Save(c.Db, tx, segment);
+            leg.End(status.State.Name(), status.NativeState, status.ExitCode, status.Signal, status.Elapsed, charged, c.Now);
+            TrackingStore.Save(c.Db, tx, leg);
             c.Ended++;
             var goneBad = Health.FirstNonFinite(points) is { } bad ? Health.NonFiniteReason(bad) : null;
-            (step, var transition) = run.EndSegment(ending, segment.StartT, latest, folder.IsDone, others.Count > 0, $"segment {segment.Number} (job {segment.JobId}) ended {status.NativeState}{exit}", c.Settings, c.Now, goneBad);
+            (step, var transition) = run.EndLeg(ending, leg.StartT, latest, folder.IsDone, others.Count > 0, $"leg {leg.Number} (job {leg.JobId}) ended {status.NativeState}{exit}", c.Settings, c.Now, goneBad);
             c.Save(tx, run, transition.Changed || run.State.IsActive() || step != NextStep.Continue ? transition : null);
             if (step == NextStep.Finish)
             {
@@ -62,47 +62,43 @@ internal static class EndSegments
     }
 
     /// <summary>
-    /// True when the warning signal ended the segment: the signal (or the shell's 128 + its number) is what it ended
+    /// True when the warning signal ended the leg: the signal (or the shell's 128 + its number) is what it ended
     /// by, or it exited cleanly once the warning time had come (a code that checkpointed on the warning). Without
-    /// progress, such a segment was too short for the code to start.
+    /// progress, such a leg was too short for the code to start.
     /// </summary>
-    private static bool WarnedBeforeProgress(TrackingSettings settings, JobSegment segment, JobStatus status, string ending)
+    private static bool WarnedBeforeProgress(TrackingSettings settings, JobLeg leg, JobStatus status, string ending)
     {
         if (settings.WarningSignal.Length == 0 || Signals.Number(settings.WarningSignal) is not { } warning)
         {
             return false;
         }
 
-        if (ending != "completed" && Signals.EndedBy(warning, status.ExitCode, status.Signal))
+        if (ending != "succeeded" && Signals.EndedBy(warning, status.ExitCode, status.Signal))
         {
             return true;
         }
 
-        var warnedAt = segment.Wall - TimeSpan.FromSeconds(settings.WarningSeconds);
-        return ending == "completed" && warnedAt > TimeSpan.Zero && status.Elapsed is { } elapsed && elapsed >= warnedAt - TimeSpan.FromSeconds(1);
+        var warnedAt = leg.Wall - TimeSpan.FromSeconds(settings.WarningSeconds);
+        return ending == "succeeded" && warnedAt > TimeSpan.Zero && status.Elapsed is { } elapsed && elapsed >= warnedAt - TimeSpan.FromSeconds(1);
     }
 
-    private static string Ending(JobStatus status, JobSegment segment) => status.State switch
+    private static string Ending(JobStatus status, JobLeg leg) => status.State switch
     {
-        JobState.Completed => "completed",
-        JobState.TimedOut => "timed_out",
-        JobState.Preempted => "preempted",
-        JobState.NodeFailed => "node_failed",
-        JobState.Failed => "failed",
-        JobState.OutOfMemory => "out_of_memory",
-        JobState.LaunchFailed => "launch_failed",
-        JobState.DeadlineMissed => "deadline",
-        JobState.Cancelled when segment.CancelReason == "stall" => "cancelled_for_stall",
-        JobState.Cancelled => "cancelled",
+        JobState.Succeeded => "succeeded",
+        JobState.OutOfTime => "out_of_time",
+        JobState.Interrupted => "interrupted",
+        JobState.Crashed => "crashed",
+        JobState.Stopped when leg.CancelReason == "stall" => "stopped_for_stall",
+        JobState.Stopped => "stopped",
         _ => "vanished",
     };
 
     private static void LogFinished(CycleContext c, Microsoft.Data.Sqlite.SqliteTransaction tx, TrackedRun run, RunFolder folder)
     {
-        var segments = TrackingStore.SegmentsOf(c.Db, run.RunId, tx);
-        var wallHours = segments.Sum(s => s.Elapsed?.TotalHours ?? 0);
+        var legs = TrackingStore.LegsOf(c.Db, run.RunId, tx);
+        var wallHours = legs.Sum(s => s.Elapsed?.TotalHours ?? 0);
         var (checkpointGb, outputGb) = folder.Sizes();
-        DateTimeOffset? started = segments.Count == 0 ? null : segments.Min(s => s.SubmittedAt);
+        DateTimeOffset? started = legs.Count == 0 ? null : legs.Min(s => s.SubmittedAt);
         var log = new RunLog(
             run.RunId,
             run.Configuration,
@@ -111,10 +107,10 @@ internal static class EndSegments
             run.Machine,
             Math.Max(wallHours, 1e-9),
             RunOutcome.Completed,
-            segments.Sum(s => s.Charged ?? 0),
+            legs.Sum(s => s.Charged ?? 0),
             Math.Max(run.Progress, 1e-9),
             null,
-            segments.Count,
+            legs.Count,
             checkpointGb > 0 ? checkpointGb : null,
             outputGb > 0 ? outputGb : null,
             started,
