@@ -82,7 +82,7 @@ public sealed class FaultInjectionTests(ITestOutputHelper output) : IDisposable
         Assert.Equal(1, db.ExecuteScalar<long>("SELECT COUNT(*) FROM run_events WHERE run_id = 'sm-q2-a04.res2' AND to_state = 'held'"));
         Assert.Equal(1, faults.Injected["permanent"]); // surfaced once: a held run is not submitted again
         // Nothing was recorded as failed because of an injected fault: every ended leg ended as the payload did.
-        Assert.Equal(0, db.ExecuteScalar<long>("SELECT COUNT(*) FROM legs WHERE job_state NOT IN ('Completed', 'Timeout')"));
+        Assert.Equal(0, db.ExecuteScalar<long>("SELECT COUNT(*) FROM legs WHERE job_state NOT IN ('succeeded', 'out_of_time')"));
         Assert.Equal(0, db.ExecuteScalar<long>("SELECT COUNT(*) FROM legs WHERE phase <> 'ended'"));
     }
 }
