@@ -11,7 +11,7 @@ double Uniform(double low, double high) => Math.Round(low + (high - low) * rando
 Console.WriteLine("# Candidate configurations of the invented demo group (invented data, for the demo only).");
 Console.WriteLine("# Made by generate-candidates.cs (seeded; never hand-edited). Columns: docs/formats.md.");
 Console.WriteLine("# Either omega0 or orbits per row; empty levels/cores/cluster take the workspace defaults.");
-Console.WriteLine("# cluster may list several machines (first preferred); select may assign the configuration to any of them.");
+Console.WriteLine("# cluster may list several clusters (first preferred); select may assign the configuration to any of them.");
 Console.WriteLine("id,q,chi1x,chi1y,chi1z,chi2x,chi2y,chi2z,omega0,orbits,levels,cores,cluster,value,must");
 
 var rows = new List<string>();

@@ -11,7 +11,7 @@ var inv = CultureInfo.InvariantCulture;
 double Normal() => Math.Sqrt(-2 * Math.Log(1 - random.NextDouble())) * Math.Cos(2 * Math.PI * random.NextDouble());
 string F(double v, string format = "G6") => v.ToString(format, inv);
 
-var machines = new[] { ("halyard", 1.0, 128, new[] { 128, 256, 384, 512 }, 48.0), ("gunwale", 0.7, 48, new[] { 96, 192, 288, 480 }, 24.0) };
+var clusters = new[] { ("halyard", 1.0, 128, new[] { 128, 256, 384, 512 }, 48.0), ("gunwale", 0.7, 48, new[] { 96, 192, 288, 480 }, 24.0) };
 var massRatios = new[] { 1.0, 1.5, 2, 2.5, 3, 4, 5, 6, 7, 8 };
 var settings = new LengthSettings();
 var start = new DateTimeOffset(2025, 1, 6, 8, 0, 0, TimeSpan.Zero);
@@ -29,7 +29,7 @@ for (var c = 0; c < 46; c++)
     var omega0 = Math.Round(0.014 + 0.006 * random.NextDouble(), 4);
     var configuration = new BinaryConfiguration(MassRatio.From(q), Spin.From(chi1.Item1, chi1.Item2, chi1.Item3), Spin.From(chi2.Item1, chi2.Item2, chi2.Item3), omega0);
     var length = SimulatedLength.Estimate(configuration, settings).Total;
-    var (machine, speed, coresPerNode, coreChoices, wallLimit) = machines[random.NextDouble() < 0.6 ? 0 : 1];
+    var (cluster, speed, coresPerNode, coreChoices, wallLimit) = clusters[random.NextDouble() < 0.6 ? 0 : 1];
     var cores = coreChoices[random.Next(coreChoices.Length)];
     var chiMax = Math.Min(Math.Max(configuration.Chi1.Magnitude, configuration.Chi2.Magnitude), 0.999);
     var levels = random.NextDouble() < 0.75 ? new[] { 1, 2, 3 } : new[] { 2, 3 };
@@ -39,7 +39,7 @@ for (var c = 0; c < 46; c++)
     {
         run++;
         var planned = trialLength > 0 ? Math.Round(trialLength) : length;
-        // The demo's cost law (README.md): core-hours for the whole run on this machine.
+        // The demo's cost law (README.md): core-hours for the whole run on this cluster.
         var law = 2500 * (planned / 1000) * Math.Pow(q, 0.8) * Math.Pow(1 - chiMax, -0.35) * Math.Pow(1.9, level - 1) * Math.Pow(cores / 128.0, 0.12) / speed;
         var coreHours = law * Math.Exp(0.18 * Normal());
         var notes = "";
@@ -56,14 +56,14 @@ for (var c = 0; c < 46; c++)
         var wall = coreHours / cores;
         var legs = (int)Math.Max(1, Math.Ceiling(wall / (wallLimit - 0.5)));
         var nodes = (cores + coresPerNode - 1) / coresPerNode;
-        var charged = machine == "halyard" ? wall * nodes * coresPerNode : wall * cores * 0.8;
+        var charged = cluster == "halyard" ? wall * nodes * coresPerNode : wall * cores * 0.8;
         var checkpoint = Math.Pow(2, level) * 1.5 * Math.Pow(q, 0.3) * Math.Exp(0.1 * Normal());
         var output = 0.8 * Math.Pow(2, level) * reached / 1000 * Math.Exp(0.15 * Normal());
         var started = start.AddHours(run * 60 + random.Next(48));
         var finished = started.AddHours(wall * 1.6 + 24 * legs * random.NextDouble());
         Console.WriteLine(string.Join(",",
             $"sr-{run:D3}", F(q), F(chi1.Item1), F(chi1.Item2), F(chi1.Item3), F(chi2.Item1), F(chi2.Item2), F(chi2.Item3), F(omega0),
-            level.ToString(inv), cores.ToString(inv), machine, F(wall, "F2"), outcome, F(charged, "F0"), outcome == "failed" ? "" : F(reached, "F0"),
+            level.ToString(inv), cores.ToString(inv), cluster, F(wall, "F2"), outcome, F(charged, "F0"), outcome == "failed" ? "" : F(reached, "F0"),
             legs.ToString(inv), F(checkpoint, "F2"), F(output, "F1"), started.ToString("yyyy-MM-ddTHH:mm:ssZ", inv), finished.ToString("yyyy-MM-ddTHH:mm:ssZ", inv), trialLength > 0 ? "eccentricity trial" : notes));
     }
 }

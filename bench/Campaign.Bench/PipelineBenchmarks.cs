@@ -27,7 +27,7 @@ public class FitBenchmarks
 [MemoryDiagnoser]
 public class EstimateBenchmarks
 {
-    private static readonly Dictionary<string, MachineProfile> Machines = new()
+    private static readonly Dictionary<string, ClusterProfile> Clusters = new()
     {
         ["a"] = new("a", "", BatchSystemKind.Slurm, 128, 512, 48, true, 1, 1, 100, 50, 3, 20),
     };
@@ -51,7 +51,7 @@ public class EstimateBenchmarks
     }
 
     [Benchmark]
-    public double Estimate() => ProposalEstimator.Estimate(_candidates, Machines, _model, StorageModel.RuleOfThumb, new LengthSettings(), new EstimateOptions()).Total.Median;
+    public double Estimate() => ProposalEstimator.Estimate(_candidates, Clusters, _model, StorageModel.RuleOfThumb, new LengthSettings(), new EstimateOptions()).Total.Median;
 }
 
 /// <summary>Reconcile cycles over many tracked runs against an in-process batch backend (see <see cref="TickBench"/>).</summary>

@@ -52,9 +52,9 @@ public static class Quick
             var spin = -Math.Log(1 - 0.9 * random.NextDouble());
             var level = 1 + random.Next(3);
             var lnCores = Math.Log(128 * (1 + random.Next(4)));
-            var machine = random.NextDouble() < 0.6 ? "a" : "b";
-            var lnSpeed = machine == "a" ? 0 : Math.Log(0.7);
-            data.Add(new CostObservation("r" + i, lnT, lnQ, spin, level, lnCores, machine, lnSpeed));
+            var cluster = random.NextDouble() < 0.6 ? "a" : "b";
+            var lnSpeed = cluster == "a" ? 0 : Math.Log(0.7);
+            data.Add(new CostObservation("r" + i, lnT, lnQ, spin, level, lnCores, cluster, lnSpeed));
             var noise = Math.Sqrt(-2 * Math.Log(1 - random.NextDouble())) * Math.Cos(2 * Math.PI * random.NextDouble());
             cost.Add(Math.Exp(-5.9 + 1.0 * lnT + 0.8 * lnQ + 0.35 * spin + 0.64 * level + 0.12 * (lnCores - Math.Log(128)) - lnSpeed + 0.2 * noise));
         }
@@ -66,7 +66,7 @@ public static class Quick
     {
         bool Wanted(string section) => only.Count == 0 || only.Contains(section);
         FittedCostModel model = CostModelFitter.Fit(Logs(1_000).Data, Logs(1_000).CoreHours, new CostFitOptions { Robust = true });
-        var machines = new Dictionary<string, MachineProfile>
+        var clusters = new Dictionary<string, ClusterProfile>
         {
             ["a"] = new("a", "", BatchSystemKind.Slurm, 128, 512, 48, true, 1, 1, 100, 50, 3, 20),
             ["b"] = new("b", "", BatchSystemKind.Pbs, 48, 192, 24, false, 0.8, 0.7, 100, 50, 3, 20),
@@ -79,10 +79,10 @@ public static class Quick
             var lengths = new double[configs.Count];
             Console.WriteLine(string.Create(Inv, $"probe: 100k lengths {Time(() => { for (var i = 0; i < configs.Count; i++) { lengths[i] = SimulatedLength.Estimate(configs[i], new LengthSettings()).Total; } }):F3} s"));
             Console.WriteLine(string.Create(Inv, $"probe: 100k lengths in parallel {Time(() => Parallel.For(0, configs.Count, i => lengths[i] = SimulatedLength.Estimate(configs[i], new LengthSettings()).Total)):F3} s on {Environment.ProcessorCount} processors"));
-            Console.WriteLine(string.Create(Inv, $"probe: 100k predictions {Time(() => { for (var i = 0; i < configs.Count; i++) { model.Predict(CostObservation.For("c", configs[i], 1, 256, machines["a"], lengths[i]), 0.9); } }):F3} s"));
+            Console.WriteLine(string.Create(Inv, $"probe: 100k predictions {Time(() => { for (var i = 0; i < configs.Count; i++) { model.Predict(CostObservation.For("c", configs[i], 1, 256, clusters["a"], lengths[i]), 0.9); } }):F3} s"));
             var probeCandidates = configs.Select((c, i) => new Candidate("c" + i, new RunSpec("c" + i, c, new[] { 1 }, 256), "a", 1, false, null)).ToList();
-            Console.WriteLine(string.Create(Inv, $"probe: 100k estimate with 100 samples {Time(() => ProposalEstimator.Estimate(probeCandidates, machines, model, StorageModel.RuleOfThumb, new LengthSettings(), new EstimateOptions { Samples = 100 })):F3} s"));
-            Console.WriteLine(string.Create(Inv, $"probe: 100k feature rows {Time(() => { for (var i = 0; i < configs.Count; i++) { model.Features.Row(CostObservation.For("c", configs[i], 1, 256, machines["a"], lengths[i])); } }):F3} s"));
+            Console.WriteLine(string.Create(Inv, $"probe: 100k estimate with 100 samples {Time(() => ProposalEstimator.Estimate(probeCandidates, clusters, model, StorageModel.RuleOfThumb, new LengthSettings(), new EstimateOptions { Samples = 100 })):F3} s"));
+            Console.WriteLine(string.Create(Inv, $"probe: 100k feature rows {Time(() => { for (var i = 0; i < configs.Count; i++) { model.Features.Row(CostObservation.For("c", configs[i], 1, 256, clusters["a"], lengths[i])); } }):F3} s"));
         }
 
         if (Wanted("fit"))
@@ -110,7 +110,7 @@ public static class Quick
                 var candidates = Enumerable.Range(0, n).Select(i => new Candidate("c" + i, new RunSpec("c" + i,
                     new BinaryConfiguration(MassRatio.From(1 + 7 * random.NextDouble()), Spin.From(0, 0, 0.9 * random.NextDouble()), Spin.From(0, 0, 0), 0.015 + 0.004 * random.NextDouble()),
                     new[] { 1 }, 256), "a", 1, false, null)).ToList();
-                var seconds = Time(() => ProposalEstimator.Estimate(candidates, machines, model, StorageModel.RuleOfThumb, new LengthSettings(), new EstimateOptions()));
+                var seconds = Time(() => ProposalEstimator.Estimate(candidates, clusters, model, StorageModel.RuleOfThumb, new LengthSettings(), new EstimateOptions()));
                 estimates.Add((n, seconds));
                 Console.WriteLine(string.Create(Inv, $"  {n,7} rows: {seconds,8:F3} s"));
             }
@@ -213,9 +213,9 @@ public static class Quick
             var forecasts = new List<(double, double)>();
             foreach (var (runs, replicas) in new[] { (500, 1_000), (500, 10_000) })
             {
-                var (campaign, forecastMachines) = ForecastBenchmarks.Campaign(runs);
+                var (campaign, forecastClusters) = ForecastBenchmarks.Campaign(runs);
                 ForecastResult? result = null;
-                var seconds = Time(() => result = CampaignForecaster.Run(campaign, forecastMachines, null, new DateTimeOffset(2027, 1, 1, 0, 0, 0, TimeSpan.Zero), new ForecastOptions { Replicas = replicas }));
+                var seconds = Time(() => result = CampaignForecaster.Run(campaign, forecastClusters, null, new DateTimeOffset(2027, 1, 1, 0, 0, 0, TimeSpan.Zero), new ForecastOptions { Replicas = replicas }));
                 forecasts.Add((replicas, seconds));
                 Console.WriteLine(string.Create(Inv, $"  {runs} runs x {replicas,6} replicas: {seconds:F2} s (P(fits) {result!.ProbabilityFits:F3})"));
             }

@@ -59,7 +59,7 @@ public static class TickBench
     private const string Config = """
         [campaign]
         name = "Benchmark campaign (invented)"
-        machines = ["simulated"]
+        clusters = ["simulated"]
 
         [tracking]
         leg_minutes = 60

@@ -25,7 +25,7 @@ internal sealed record CampaignInputs(IReadOnlyList<RunLog> Logs, TrainingSet Tr
         var logs = RunLogStore.All(workspace.Connection);
         var model = CostModelStore.Latest(workspace.Connection);
         var length = model?.Length ?? workspace.Config.Length;
-        var training = TrainingSet.From(logs, workspace.Machines, length);
+        var training = TrainingSet.From(logs, workspace.Clusters, length);
         var notes = new List<string>();
         if (model?.Length is { } fitted && fitted != workspace.Config.Length)
         {
@@ -39,10 +39,10 @@ internal sealed record CampaignInputs(IReadOnlyList<RunLog> Logs, TrainingSet Tr
     public static IReadOnlyList<Candidate> Candidates(Workspace workspace, string path, string shown)
     {
         var config = workspace.Config;
-        return CandidateReader.Read(InputFile.Read(path, shown, "a candidate file (CSV)"), shown, config.Length, config.Defaults, config.DefaultMachine, workspace.Machines.Keys.ToList());
+        return CandidateReader.Read(InputFile.Read(path, shown, "a candidate file (CSV)"), shown, config.Length, config.Defaults, config.DefaultCluster, workspace.Clusters.Keys.ToList());
     }
 
-    /// <summary>Charged core-hours granted per machine (all its allocations).</summary>
+    /// <summary>Charged core-hours granted per cluster (all its allocations).</summary>
     public static IReadOnlyDictionary<string, double> Allocations(Workspace workspace) =>
-        workspace.Config.Allocations.GroupBy(a => a.Machine).ToDictionary(g => g.Key, g => g.Sum(a => a.CoreHours(workspace.Machine(a.Machine))));
+        workspace.Config.Allocations.GroupBy(a => a.Cluster).ToDictionary(g => g.Key, g => g.Sum(a => a.CoreHours(workspace.Cluster(a.Cluster))));
 }

@@ -30,7 +30,7 @@ internal sealed record CampaignSnapshot(PlanVersion? Plan, IReadOnlyList<RunReco
             standing = CampaignStanding.Of(plan, runs);
         }
 
-        return new CampaignSnapshot(plan, runs, legs, standing, new CampaignLedger(workspace.Config.Allocations, workspace.Machines, legs));
+        return new CampaignSnapshot(plan, runs, legs, standing, new CampaignLedger(workspace.Config.Allocations, workspace.Clusters, legs));
     }
 
     /// <summary>Worst-case charge of each run's open legs.</summary>

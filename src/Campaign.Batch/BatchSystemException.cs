@@ -7,11 +7,11 @@ public enum BatchErrorKind
     Transient,
 
     /// <summary>Will fail again, and not because of the request: a missing command, an unreadable configuration, a
-    /// permission error. A fault of the machine: nothing is concluded about the runs on it.</summary>
+    /// permission error. A fault of the cluster: nothing is concluded about the runs on it.</summary>
     Permanent,
 
     /// <summary>The batch system answered and refused this particular request (its account, partition, size or
-    /// limits): a fault of the run's request, not of the machine.</summary>
+    /// limits): a fault of the run's request, not of the cluster.</summary>
     Rejected,
 }
 
@@ -25,7 +25,7 @@ public sealed class BatchSystemException : Exception
         Kind = kind;
     }
 
-    /// <summary>Transient, permanent (the machine's fault) or rejected (the request's).</summary>
+    /// <summary>Transient, permanent (the cluster's fault) or rejected (the request's).</summary>
     public BatchErrorKind Kind { get; }
 }
 

@@ -25,7 +25,7 @@ public enum JobState
     /// <summary>Ended badly by its own doing: a non-zero exit, a signal, its memory exceeded, or its script could not start.</summary>
     Crashed,
 
-    /// <summary>Ended by the machine, not by the job: a node went down, or the job was pre-empted.</summary>
+    /// <summary>Ended by the cluster, not by the job: a node went down, or the job was pre-empted.</summary>
     Interrupted,
 
     /// <summary>Cancelled, by a person or by the tracker.</summary>

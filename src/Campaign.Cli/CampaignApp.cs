@@ -25,7 +25,7 @@ public sealed class CampaignApp
         HelpName = "DIR",
     };
 
-    /// <summary>Option --json: machine-readable output (every command).</summary>
+    /// <summary>Option --json: cluster-readable output (every command).</summary>
     internal static readonly Option<bool> JsonOption = new("--json")
     {
         Description = "Write one JSON document to standard output instead of tables",
@@ -56,7 +56,7 @@ public sealed class CampaignApp
     internal RootCommand BuildCommands()
     {
         var root = new RootCommand(
-            "campaign: plan, choose and run binary-black-hole simulation campaigns on shared machines.\n" +
+            "campaign: plan, choose and run binary-black-hole simulation campaigns on shared clusters.\n" +
             "Estimates are estimates; the allocating site's charging rules and policies rule.")
         {
             DirOption,
@@ -65,7 +65,7 @@ public sealed class CampaignApp
         root.Add(InitCommand.Build(this));
         root.Add(CheckCommand.Build(this));
         root.Add(LengthCommand.Build(this));
-        root.Add(MachinesCommand.Build(this));
+        root.Add(ClustersCommand.Build(this));
         root.Add(LogsCommand.Build(this));
         root.Add(ModelCommand.Build(this));
         root.Add(EstimateCommand.Build(this));

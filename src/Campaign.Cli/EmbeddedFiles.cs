@@ -2,7 +2,7 @@ using System.Reflection;
 
 namespace Campaign.Cli;
 
-/// <summary>Files shipped inside the executable: machine profiles, the demo campaign and templates.</summary>
+/// <summary>Files shipped inside the executable: cluster profiles, the demo campaign and templates.</summary>
 internal static class EmbeddedFiles
 {
     private static readonly Assembly Assembly = typeof(EmbeddedFiles).Assembly;

@@ -3,10 +3,10 @@ using Campaign.Core.Forecast;
 namespace Campaign.Reports;
 
 /// <summary>An allocation as the burn-down shows it.</summary>
-public sealed record AllocationLine(string Machine, DateTimeOffset Start, DateTimeOffset End, double CoreHours, double PlannedCoreHours);
+public sealed record AllocationLine(string Cluster, DateTimeOffset Start, DateTimeOffset End, double CoreHours, double PlannedCoreHours);
 
 /// <summary>A charge that happened (one ended leg).</summary>
-public sealed record ChargePoint(string Machine, DateTimeOffset At, double CoreHours);
+public sealed record ChargePoint(string Cluster, DateTimeOffset At, double CoreHours);
 
 /// <summary>A run's simulated time against wall-clock.</summary>
 public sealed record ProgressLine(string RunId, double Target, IReadOnlyList<(DateTimeOffset At, double T)> Points);
@@ -23,7 +23,7 @@ public sealed record CoveragePoint(double Q, double ChiEff);
 public sealed record ModelCheckPoint(double Predicted, double Low, double High, double Actual, bool FromCampaign = false);
 
 /// <summary>One row of the proposal table.</summary>
-public sealed record ProposalRow(string Id, int Level, string Machine, double Median, double Low, double High, double Charged, int Legs);
+public sealed record ProposalRow(string Id, int Level, string Cluster, double Median, double Low, double High, double Charged, int Legs);
 
 /// <summary>Everything the report shows; gathered by the caller from the workspace.</summary>
 public sealed record ReportData(

@@ -110,9 +110,9 @@ public static class ReportWriter
             planned.Color = color;
             planned.LinePattern = LinePattern.Dashed;
             planned.MarkerSize = 0;
-            planned.LegendText = allocation.Machine + ": plan";
+            planned.LegendText = allocation.Cluster + ": plan";
 
-            var charges = data.Charges.Where(c => c.Machine == allocation.Machine && c.At >= allocation.Start && c.At <= allocation.End).OrderBy(c => c.At).ToList();
+            var charges = data.Charges.Where(c => c.Cluster == allocation.Cluster && c.At >= allocation.Start && c.At <= allocation.End).OrderBy(c => c.At).ToList();
             var xs = new List<double> { OaDate(allocation.Start) };
             var ys = new List<double> { allocation.CoreHours };
             var left = allocation.CoreHours;
@@ -129,12 +129,12 @@ public static class ReportWriter
                 actual.Color = color;
                 actual.LineWidth = 2.5f;
                 actual.MarkerSize = 0;
-                actual.LegendText = allocation.Machine + ": charged";
+                actual.LegendText = allocation.Cluster + ": charged";
             }
 
             if (data.Forecast is { } forecast)
             {
-                var windows = forecast.Windows.Where(w => w.Machine == allocation.Machine).OrderBy(w => w.End).ToList();
+                var windows = forecast.Windows.Where(w => w.Cluster == allocation.Cluster).OrderBy(w => w.End).ToList();
                 if (windows.Count > 0)
                 {
                     var bx = new List<double> { OaDate(data.GeneratedAt) };
@@ -153,7 +153,7 @@ public static class ReportWriter
                     var band = plot.Add.FillY(bx.ToArray(), low.ToArray(), high.ToArray());
                     band.FillColor = color.WithAlpha(0.18);
                     band.LineColor = color.WithAlpha(0.4);
-                    band.LegendText = allocation.Machine + ": forecast P10-P90";
+                    band.LegendText = allocation.Cluster + ": forecast P10-P90";
                 }
             }
         }
@@ -282,10 +282,10 @@ public static class ReportWriter
                 .Append("<figcaption>").Append(E(caption)).Append(" Also as <a href=\"").Append(name).Append(".svg\">SVG</a> and <a href=\"").Append(name).Append(".png\">PNG</a>.</figcaption></figure>\n");
         }
 
-        b.Append("<h2>Proposal table</h2>\n<table><thead><tr><th>configuration</th><th>level</th><th>machine</th><th>median core-h</th><th>90% interval</th><th>charged core-h</th><th>legs</th></tr></thead><tbody>\n");
+        b.Append("<h2>Proposal table</h2>\n<table><thead><tr><th>configuration</th><th>level</th><th>cluster</th><th>median core-h</th><th>90% interval</th><th>charged core-h</th><th>legs</th></tr></thead><tbody>\n");
         foreach (var r in data.Proposal)
         {
-            b.Append("<tr><td>").Append(E(r.Id)).Append("</td><td>").Append(r.Level).Append("</td><td>").Append(E(r.Machine)).Append("</td><td>").Append(N(r.Median)).Append("</td><td>")
+            b.Append("<tr><td>").Append(E(r.Id)).Append("</td><td>").Append(r.Level).Append("</td><td>").Append(E(r.Cluster)).Append("</td><td>").Append(N(r.Median)).Append("</td><td>")
                 .Append(N(r.Low)).Append(" - ").Append(N(r.High)).Append("</td><td>").Append(N(r.Charged)).Append("</td><td>").Append(r.Legs).Append("</td></tr>\n");
         }
 

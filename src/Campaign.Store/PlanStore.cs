@@ -38,7 +38,7 @@ public sealed record PlanDraft(
 public static class PlanStore
 {
     private const string EntryColumns =
-        "config_id AS ConfigId, level AS Level, kind AS Kind, machine AS Machine, cores AS Cores, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, " +
+        "config_id AS ConfigId, level AS Level, kind AS Kind, cluster AS Cluster, cores AS Cores, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, " +
         "target_length AS TargetLength, length_m AS LengthM, median AS Median, mean AS Mean, low AS Low, high AS High, wall_hours AS WallHours, legs AS Legs, node_hours AS NodeHours, " +
         "charged AS Charged, charged_high AS ChargedHigh, cost AS Cost, checkpoint_gb AS CheckpointGb, output_gb AS OutputGb, source AS Source, extrapolation AS Extrapolation, log_se AS LogSe, dof AS Dof, runs AS Runs";
 
@@ -70,10 +70,10 @@ public static class PlanStore
             var r = e.Estimate;
             connection.Execute(
                 """
-                INSERT INTO plan_entries (plan_id, config_id, level, kind, machine, cores, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0,
+                INSERT INTO plan_entries (plan_id, config_id, level, kind, cluster, cores, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0,
                     target_length, length_m, median, mean, low, high, wall_hours, legs, node_hours, charged, charged_high, cost,
                     checkpoint_gb, output_gb, source, extrapolation, log_se, dof, runs)
-                VALUES (@Id, @ConfigId, @Level, @Kind, @Machine, @Cores, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0,
+                VALUES (@Id, @ConfigId, @Level, @Kind, @Cluster, @Cores, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0,
                     @TargetLength, @LengthM, @Median, @Mean, @Low, @High, @WallHours, @Legs, @NodeHours, @Charged, @ChargedHigh, @Cost,
                     @CheckpointGb, @OutputGb, @Source, @Extrapolation, @LogSe, @Dof, @Runs)
                 """,
@@ -83,7 +83,7 @@ public static class PlanStore
                     ConfigId = r.Id,
                     r.Level,
                     Kind = e.Kind == PlanEntryKind.Trials ? "trials" : "run",
-                    r.Machine,
+                    r.Cluster,
                     r.Cores,
                     e.TargetLength,
                     r.LengthM,
@@ -194,7 +194,7 @@ public static class PlanStore
 
         public string Kind { get; set; } = "";
 
-        public string Machine { get; set; } = "";
+        public string Cluster { get; set; } = "";
 
         public long Cores { get; set; }
 
@@ -242,7 +242,7 @@ public static class PlanStore
                 ConfigId,
                 (int)Level,
                 Kind == "trials" ? "ecc" : "run",
-                Machine,
+                Cluster,
                 (int)Cores,
                 LengthM,
                 Median,

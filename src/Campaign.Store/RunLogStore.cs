@@ -46,14 +46,14 @@ public static class RunLogStore
         var c = log.Configuration;
         connection.Execute(
             """
-            INSERT INTO run_logs (run_id, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0, level, cores, machine, wall_hours, outcome,
+            INSERT INTO run_logs (run_id, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0, level, cores, cluster, wall_hours, outcome,
                 core_hours, t_end, orbits, legs, checkpoint_gb, output_gb, started, finished, extra_json, source, imported_at)
-            VALUES (@RunId, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0, @Level, @Cores, @Machine, @WallHours, @Outcome,
+            VALUES (@RunId, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0, @Level, @Cores, @Cluster, @WallHours, @Outcome,
                 @CoreHours, @TEnd, @Orbits, @Legs, @CheckpointGb, @OutputGb, @Started, @Finished, @Extra, @Source, @At)
             ON CONFLICT (run_id) DO UPDATE SET
                 q = excluded.q, chi1x = excluded.chi1x, chi1y = excluded.chi1y, chi1z = excluded.chi1z, chi2x = excluded.chi2x,
                 chi2y = excluded.chi2y, chi2z = excluded.chi2z, omega0 = excluded.omega0, level = excluded.level, cores = excluded.cores,
-                machine = excluded.machine, wall_hours = excluded.wall_hours, outcome = excluded.outcome, core_hours = excluded.core_hours,
+                cluster = excluded.cluster, wall_hours = excluded.wall_hours, outcome = excluded.outcome, core_hours = excluded.core_hours,
                 t_end = excluded.t_end, orbits = excluded.orbits, legs = excluded.legs, checkpoint_gb = excluded.checkpoint_gb,
                 output_gb = excluded.output_gb, started = excluded.started, finished = excluded.finished, extra_json = excluded.extra_json,
                 source = excluded.source, imported_at = excluded.imported_at
@@ -63,7 +63,7 @@ public static class RunLogStore
                 log.RunId,
                 log.Level,
                 log.Cores,
-                log.Machine,
+                log.Cluster,
                 log.WallHours,
                 Outcome = log.Outcome.ToString().ToLowerInvariant(),
                 log.CoreHours,
@@ -107,7 +107,7 @@ public static class RunLogStore
     {
         var configuration = new BinaryConfiguration(MassRatio.From(r.q), Spin.From(r.chi1x, r.chi1y, r.chi1z, "chi1"), Spin.From(r.chi2x, r.chi2y, r.chi2z, "chi2"), r.omega0);
         var outcome = Enum.Parse<RunOutcome>(r.outcome, ignoreCase: true);
-        return new RunLog(r.run_id, configuration, (int)r.level, (int)r.cores, r.machine, r.wall_hours, outcome, r.core_hours, r.t_end, r.orbits,
+        return new RunLog(r.run_id, configuration, (int)r.level, (int)r.cores, r.cluster, r.wall_hours, outcome, r.core_hours, r.t_end, r.orbits,
             r.legs is null ? null : (int)r.legs.Value, r.checkpoint_gb, r.output_gb, Parse(r.started), Parse(r.finished));
     }
 
@@ -116,7 +116,7 @@ public static class RunLogStore
 #pragma warning disable IDE1006, SA1300 // column names as SQLite stores them
     private sealed record Row(
         string run_id, double q, double chi1x, double chi1y, double chi1z, double chi2x, double chi2y, double chi2z, double omega0, long level,
-        long cores, string machine, double wall_hours, string outcome, double? core_hours, double? t_end, double? orbits, long? legs,
+        long cores, string cluster, double wall_hours, string outcome, double? core_hours, double? t_end, double? orbits, long? legs,
         double? checkpoint_gb, double? output_gb, string? started, string? finished, string extra_json, string source, string imported_at);
 #pragma warning restore IDE1006, SA1300
 }

@@ -13,7 +13,7 @@ namespace Campaign.Store;
 /// </summary>
 public static class TrackingStore
 {
-    private const string RunColumns = "run_id AS RunId, config_id AS ConfigId, level AS Level, machine AS Machine, cores AS Cores, folder AS Folder, target_length AS TargetLength, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, position AS Position, state AS State, reason AS Reason, failures_with_progress AS FailuresWithProgress, failures_without_progress AS FailuresWithoutProgress, stall_restarts AS StallRestarts, progress_t AS ProgressT, progress_at AS ProgressAt, norm AS Norm, checkpoint AS Checkpoint, created_at AS CreatedAt, updated_at AS UpdatedAt, finished_at AS FinishedAt, rehearsal AS Rehearsal, short_legs AS ShortLegs";
+    private const string RunColumns = "run_id AS RunId, config_id AS ConfigId, level AS Level, cluster AS Cluster, cores AS Cores, folder AS Folder, target_length AS TargetLength, q AS Q, chi1x AS Chi1x, chi1y AS Chi1y, chi1z AS Chi1z, chi2x AS Chi2x, chi2y AS Chi2y, chi2z AS Chi2z, omega0 AS Omega0, position AS Position, state AS State, reason AS Reason, failures_with_progress AS FailuresWithProgress, failures_without_progress AS FailuresWithoutProgress, stall_restarts AS StallRestarts, progress_t AS ProgressT, progress_at AS ProgressAt, norm AS Norm, checkpoint AS Checkpoint, created_at AS CreatedAt, updated_at AS UpdatedAt, finished_at AS FinishedAt, rehearsal AS Rehearsal, short_legs AS ShortLegs";
 
     private const string LegColumns = "id AS Id, run_id AS RunId, number AS Number, job_name AS JobName, job_id AS JobId, phase AS Phase, job_state AS JobState, native_state AS NativeState, exit_code AS ExitCode, signal AS Signal, elapsed_seconds AS ElapsedSeconds, charged_core_hours AS ChargedCoreHours, worst_case_core_hours AS WorstCaseCoreHours, wall_seconds AS WallSeconds, start_t AS StartT, restart_from AS RestartFrom, cancel_reason AS CancelReason, submitted_at AS SubmittedAt, started_at AS StartedAt, ended_at AS EndedAt";
 
@@ -45,12 +45,12 @@ public static class TrackingStore
     public static IReadOnlyList<JobLeg> LegsOf(SqliteConnection connection, string runId, SqliteTransaction? transaction = null) =>
         connection.Query<LegRow>($"SELECT {LegColumns} FROM legs WHERE run_id = @runId ORDER BY number", new { runId }, transaction).Select(s => s.ToLeg()).ToList();
 
-    /// <summary>Every leg's charge (or commitment), with the machine of its run.</summary>
+    /// <summary>Every leg's charge (or commitment), with the cluster of its run.</summary>
     public static IReadOnlyList<LegCharge> Charges(SqliteConnection connection, SqliteTransaction? transaction = null) =>
-        connection.Query<(string RunId, string Machine, string Phase, double WorstCase, double? Charged, string SubmittedAt, string? StartedAt, string? EndedAt)>(
-            "SELECT s.run_id, r.machine, s.phase, s.worst_case_core_hours, s.charged_core_hours, s.submitted_at, s.started_at, s.ended_at FROM legs s JOIN tracked_runs r ON r.run_id = s.run_id",
+        connection.Query<(string RunId, string Cluster, string Phase, double WorstCase, double? Charged, string SubmittedAt, string? StartedAt, string? EndedAt)>(
+            "SELECT s.run_id, r.cluster, s.phase, s.worst_case_core_hours, s.charged_core_hours, s.submitted_at, s.started_at, s.ended_at FROM legs s JOIN tracked_runs r ON r.run_id = s.run_id",
             transaction: transaction)
-        .Select(s => new LegCharge(s.RunId, s.Machine, PhaseOf(s.Phase), s.WorstCase, s.Charged, Time(s.SubmittedAt), OptionalTime(s.StartedAt), OptionalTime(s.EndedAt)))
+        .Select(s => new LegCharge(s.RunId, s.Cluster, PhaseOf(s.Phase), s.WorstCase, s.Charged, Time(s.SubmittedAt), OptionalTime(s.StartedAt), OptionalTime(s.EndedAt)))
         .ToList();
 
     /// <summary>The run events, oldest first (of one run, or all).</summary>
@@ -64,9 +64,9 @@ public static class TrackingStore
     {
         connection.Execute(
             """
-            INSERT INTO tracked_runs (run_id, config_id, level, machine, cores, folder, target_length, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0,
+            INSERT INTO tracked_runs (run_id, config_id, level, cluster, cores, folder, target_length, q, chi1x, chi1y, chi1z, chi2x, chi2y, chi2z, omega0,
                 position, state, reason, created_at, updated_at, rehearsal)
-            VALUES (@RunId, @ConfigId, @Level, @Machine, @Cores, @Folder, @TargetLength, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0,
+            VALUES (@RunId, @ConfigId, @Level, @Cluster, @Cores, @Folder, @TargetLength, @Q, @Chi1x, @Chi1y, @Chi1z, @Chi2x, @Chi2y, @Chi2z, @Omega0,
                 @Position, @State, @Reason, @CreatedAt, @UpdatedAt, @Rehearsal)
             """,
             ConfigurationColumns.Parameters(run.Configuration, new
@@ -74,7 +74,7 @@ public static class TrackingStore
                 run.RunId,
                 run.ConfigId,
                 run.Level,
-                run.Machine,
+                run.Cluster,
                 run.Cores,
                 run.Folder,
                 run.TargetLength,
@@ -228,7 +228,7 @@ public static class TrackingStore
 
         public long Level { get; set; }
 
-        public string Machine { get; set; } = "";
+        public string Cluster { get; set; } = "";
 
         public long Cores { get; set; }
 
@@ -267,7 +267,7 @@ public static class TrackingStore
         public long ShortLegs { get; set; }
 
         public TrackedRun ToRun() => TrackedRun.Restore(
-            RunId, ConfigId, (int)Level, Machine, (int)Cores, Folder, TargetLength, Configuration, Position, Rehearsal, Time(CreatedAt),
+            RunId, ConfigId, (int)Level, Cluster, (int)Cores, Folder, TargetLength, Configuration, Position, Rehearsal, Time(CreatedAt),
             RunStates.Parse(State), Reason, (int)FailuresWithProgress, (int)FailuresWithoutProgress, (int)StallRestarts, (int)ShortLegs, ProgressT, OptionalTime(ProgressAt), Norm, Checkpoint,
             Time(UpdatedAt), OptionalTime(FinishedAt));
     }

@@ -5,8 +5,8 @@ using Microsoft.Data.Sqlite;
 namespace Campaign.Store;
 
 /// <summary>
-/// An open workspace: the folder with campaign.toml (human-edited settings), machines/*.toml (one profile per
-/// machine) and campaign.db (history and state, SQLite).
+/// An open workspace: the folder with campaign.toml (human-edited settings), clusters/*.toml (one profile per
+/// cluster) and campaign.db (history and state, SQLite).
 /// </summary>
 public sealed class Workspace : IDisposable
 {
@@ -16,14 +16,17 @@ public sealed class Workspace : IDisposable
     /// <summary>The database file's name.</summary>
     public const string DatabaseFileName = "campaign.db";
 
-    /// <summary>The folder of machine profiles.</summary>
-    public const string MachinesFolderName = "machines";
+    /// <summary>The folder of cluster profiles.</summary>
+    public const string ClustersFolderName = "clusters";
 
-    private Workspace(string root, WorkspaceConfig config, IReadOnlyDictionary<string, MachineProfile> machines, SqliteConnection connection)
+    /// <summary>Where workspaces made before schema version 9 keep their cluster profiles.</summary>
+    public const string FormerClustersFolderName = "machines";
+
+    private Workspace(string root, WorkspaceConfig config, IReadOnlyDictionary<string, ClusterProfile> clusters, SqliteConnection connection)
     {
         Root = root;
         Config = config;
-        Machines = machines;
+        Clusters = clusters;
         Connection = connection;
         Id = Dapper.SqlMapper.ExecuteScalar<string>(connection, "SELECT value FROM workspace_info WHERE key = 'workspace_id'") ?? "";
     }
@@ -37,8 +40,8 @@ public sealed class Workspace : IDisposable
     /// <summary>The validated settings.</summary>
     public WorkspaceConfig Config { get; }
 
-    /// <summary>Machine profiles by name.</summary>
-    public IReadOnlyDictionary<string, MachineProfile> Machines { get; }
+    /// <summary>Cluster profiles by name.</summary>
+    public IReadOnlyDictionary<string, ClusterProfile> Clusters { get; }
 
     /// <summary>The open, migrated database.</summary>
     public SqliteConnection Connection { get; }
@@ -53,7 +56,7 @@ public sealed class Workspace : IDisposable
     public static Workspace Open(string root, TimeProvider time)
     {
         root = Path.GetFullPath(root);
-        var (config, machines) = ReadSettings(root);
+        var (config, clusters) = ReadSettings(root);
         var database = PathOf(root, DatabaseFileName);
         if (!File.Exists(database) || new FileInfo(database).Length == 0)
         {
@@ -62,7 +65,7 @@ public sealed class Workspace : IDisposable
         }
 
         var connection = CampaignDatabase.Open(database, time);
-        return new Workspace(root, config, machines, connection);
+        return new Workspace(root, config, clusters, connection);
     }
 
     /// <summary>
@@ -110,10 +113,10 @@ public sealed class Workspace : IDisposable
     public static bool Exists(string root) => File.Exists(PathOf(Path.GetFullPath(root), ConfigFileName));
 
     /// <summary>
-    /// Reads and validates the config and machine profiles of the workspace in <paramref name="root"/> without
+    /// Reads and validates the config and cluster profiles of the workspace in <paramref name="root"/> without
     /// touching its database (for commands that only need settings).
     /// </summary>
-    public static (WorkspaceConfig Config, IReadOnlyDictionary<string, MachineProfile> Machines) ReadSettings(string root)
+    public static (WorkspaceConfig Config, IReadOnlyDictionary<string, ClusterProfile> Clusters) ReadSettings(string root)
     {
         root = Path.GetFullPath(root);
         var configPath = PathOf(root, ConfigFileName);
@@ -122,13 +125,22 @@ public sealed class Workspace : IDisposable
             throw new InvalidInputException(new[] { $"{root}: not a campaign workspace (no {ConfigFileName}): expected a folder made by 'campaign init DIR', or give one with --dir" });
         }
 
-        var machines = MachineCatalog.Load(PathOf(root, MachinesFolderName), PathOf(root, MachinesFolderName));
-        var config = WorkspaceConfigReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(configPath), configPath), configPath, machines.Keys.ToList());
-        return (config, machines);
+        // Workspaces made before the profiles' folder got its current name keep them in the former one.
+        var folder = PathOf(root, ClustersFolderName);
+        var former = PathOf(root, FormerClustersFolderName);
+        var useFormer = !Directory.Exists(folder) && Directory.Exists(former);
+        var clusters = ClusterCatalog.Load(useFormer ? former : folder, useFormer ? former : folder);
+        var config = WorkspaceConfigReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(configPath), configPath), configPath, clusters.Keys.ToList());
+        if (useFormer)
+        {
+            config = config with { Notices = config.Notices.Prepend($"{former}: the former name of the profiles' folder '{ClustersFolderName}'; read as that (rename it)").ToList() };
+        }
+
+        return (config, clusters);
     }
 
-    /// <summary>The profile of a machine the config lists.</summary>
-    public MachineProfile Machine(string name) => Machines[name];
+    /// <summary>The profile of a cluster the config lists.</summary>
+    public ClusterProfile Cluster(string name) => Clusters[name];
 
     /// <inheritdoc />
     public void Dispose() => Connection.Dispose();

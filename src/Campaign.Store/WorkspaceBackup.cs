@@ -12,7 +12,7 @@ public sealed record BackupResult(string Destination, IReadOnlyList<string> File
 
 /// <summary>
 /// A consistent copy of a workspace's own state: the database through SQLite's online backup (safe while the
-/// daemon writes: it copies one consistent snapshot), the config, the machine profiles and the leg script.
+/// daemon writes: it copies one consistent snapshot), the config, the cluster profiles and the leg script.
 /// Run folders (checkpoints, simulation output) are not copied: they belong on storage the site backs up.
 /// </summary>
 public static class WorkspaceBackup
@@ -58,9 +58,9 @@ public static class WorkspaceBackup
         }
 
         Copy(Workspace.ConfigFileName);
-        foreach (var profile in Directory.EnumerateFiles(Path.Combine(workspace.Root, Workspace.MachinesFolderName), "*.toml").Order(StringComparer.Ordinal))
+        foreach (var profile in Directory.EnumerateFiles(Path.Combine(workspace.Root, Workspace.ClustersFolderName), "*.toml").Order(StringComparer.Ordinal))
         {
-            Copy(Path.Combine(Workspace.MachinesFolderName, Path.GetFileName(profile)));
+            Copy(Path.Combine(Workspace.ClustersFolderName, Path.GetFileName(profile)));
         }
 
         Copy("run-leg.sh");

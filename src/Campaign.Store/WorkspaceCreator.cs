@@ -4,19 +4,21 @@ using Dapper;
 
 namespace Campaign.Store;
 
-/// <summary>What a new workspace is made of: the config text and the machine profiles to copy in.</summary>
+/// <summary>What a new workspace is made of: the config text and the cluster profiles to copy in.</summary>
 /// <param name="ConfigText">Text of campaign.toml.</param>
-/// <param name="Profiles">File name to TOML text of each machine profile.</param>
-public sealed record WorkspaceTemplate(string ConfigText, IReadOnlyDictionary<string, string> Profiles);
+/// <param name="Profiles">File name to TOML text of each cluster profile.</param>
+/// <param name="Examples">File name to text of files written beside the profiles as they are (templates that are
+/// not profiles yet, such as a commented cluster.toml.example).</param>
+public sealed record WorkspaceTemplate(string ConfigText, IReadOnlyDictionary<string, string> Profiles, IReadOnlyDictionary<string, string>? Examples = null);
 
 /// <summary>Creates workspaces.</summary>
 public static class WorkspaceCreator
 {
     /// <summary>
-    /// Writes campaign.toml and machines/*.toml into <paramref name="root"/> and creates campaign.db. A folder
+    /// Writes campaign.toml and clusters/*.toml into <paramref name="root"/> and creates campaign.db. A folder
     /// that already has files is refused unless <paramref name="force"/>; even then nothing the user has is
     /// replaced: an existing campaign.db is kept (its history is never thrown away) and only migrated, and an
-    /// existing campaign.toml or machine profile is kept with the template written beside it as NAME.new. The
+    /// existing campaign.toml or cluster profile is kept with the template written beside it as NAME.new. The
     /// template is validated before anything is written.
     /// </summary>
     public static IReadOnlyList<string> Create(string root, WorkspaceTemplate template, bool force, TimeProvider time)
@@ -33,7 +35,7 @@ public static class WorkspaceCreator
         {
             try
             {
-                names.Add(MachineProfileReader.Read(text, Path.Combine(Workspace.MachinesFolderName, file)).Name);
+                names.Add(ClusterProfileReader.Read(text, Path.Combine(Workspace.ClustersFolderName, file)).Name);
             }
             catch (InvalidInputException e)
             {
@@ -58,10 +60,17 @@ public static class WorkspaceCreator
 
         // A file the user already has is never overwritten: the template goes beside it as NAME.new.
         var written = new List<string>();
-        Directory.CreateDirectory(Workspace.PathOf(root, Workspace.MachinesFolderName));
+        Directory.CreateDirectory(Workspace.PathOf(root, Workspace.ClustersFolderName));
         foreach (var (file, text) in template.Profiles)
         {
-            var path = Beside(Path.Combine(root, Workspace.MachinesFolderName, file));
+            var path = Beside(Path.Combine(root, Workspace.ClustersFolderName, file));
+            File.WriteAllText(path, text);
+            written.Add(path);
+        }
+
+        foreach (var (file, text) in template.Examples ?? new Dictionary<string, string>())
+        {
+            var path = Beside(Path.Combine(root, Workspace.ClustersFolderName, file));
             File.WriteAllText(path, text);
             written.Add(path);
         }
@@ -86,7 +95,7 @@ public static class WorkspaceCreator
             "INSERT INTO workspace_info (key, value) VALUES ('created_at', @At) ON CONFLICT (key) DO NOTHING",
             new { At = time.GetUtcNow().ToString("O", System.Globalization.CultureInfo.InvariantCulture) },
             transaction);
-        EventLog.Append(connection, transaction, time, "workspace.init", null, $"config and {template.Profiles.Count} machine profiles written");
+        EventLog.Append(connection, transaction, time, "workspace.init", null, $"config and {template.Profiles.Count} cluster profiles written");
         transaction.Commit();
         written.Add(databasePath);
         return written;

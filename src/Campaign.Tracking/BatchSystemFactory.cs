@@ -8,40 +8,40 @@ using Campaign.Store;
 
 namespace Campaign.Tracking;
 
-/// <summary>One batch system per machine of the workspace, each wrapped in the host's retry/timeout decorator.</summary>
+/// <summary>One batch system per cluster of the workspace, each wrapped in the host's retry/timeout decorator.</summary>
 public static class BatchSystemFactory
 {
     /// <summary>
-    /// Builds the adapters: local machines get a local runner with its state in LOCAL-RUNNER/MACHINE under the
-    /// workspace and as many slots as the machine's cores per node; Slurm and PBS machines use their commands.
+    /// Builds the adapters: local clusters get a local runner with its state in LOCAL-RUNNER/CLUSTER under the
+    /// workspace and as many slots as the cluster's cores per node; Slurm and PBS clusters use their commands.
     /// </summary>
-    /// <param name="workspace">The workspace whose machines get adapters.</param>
+    /// <param name="workspace">The workspace whose clusters get adapters.</param>
     /// <param name="supervisor">How the local runner starts its job supervisors.</param>
     /// <param name="retry">The retry and timeout settings of the decorator.</param>
     /// <param name="time">The clock.</param>
     /// <param name="inside">Optional: wraps each adapter inside the decorator (fault injection in the reliability tests).</param>
     public static IReadOnlyDictionary<string, IBatchSystem> Create(Workspace workspace, SupervisorCommand supervisor, RetryOptions retry, TimeProvider time, Func<string, IBatchSystem, IBatchSystem>? inside = null) =>
-        Create(workspace.Root, workspace.Machines, supervisor, retry, time, inside);
+        Create(workspace.Root, workspace.Clusters, supervisor, retry, time, inside);
 
-    /// <summary>Builds the adapters for the machines of the workspace in <paramref name="root"/>.</summary>
+    /// <summary>Builds the adapters for the clusters of the workspace in <paramref name="root"/>.</summary>
     /// <param name="root">The workspace folder (the local runner keeps its state under it).</param>
-    /// <param name="machines">The machine profiles.</param>
+    /// <param name="clusters">The cluster profiles.</param>
     /// <param name="supervisor">How the local runner starts its job supervisors.</param>
     /// <param name="retry">The retry and timeout settings of the decorator.</param>
     /// <param name="time">The clock.</param>
     /// <param name="inside">Optional: wraps each adapter inside the decorator.</param>
-    public static IReadOnlyDictionary<string, IBatchSystem> Create(string root, IReadOnlyDictionary<string, MachineProfile> machines, SupervisorCommand supervisor, RetryOptions retry, TimeProvider time, Func<string, IBatchSystem, IBatchSystem>? inside = null)
+    public static IReadOnlyDictionary<string, IBatchSystem> Create(string root, IReadOnlyDictionary<string, ClusterProfile> clusters, SupervisorCommand supervisor, RetryOptions retry, TimeProvider time, Func<string, IBatchSystem, IBatchSystem>? inside = null)
     {
         var systems = new Dictionary<string, IBatchSystem>(StringComparer.Ordinal);
-        foreach (var machine in machines.Values)
+        foreach (var cluster in clusters.Values)
         {
-            IBatchSystem adapter = machine.BatchSystem switch
+            IBatchSystem adapter = cluster.BatchSystem switch
             {
-                BatchSystemKind.Local => new LocalBatchSystem(new LocalOptions(Path.Combine(root, "local-runner", machine.Name), machine.CoresPerNode, supervisor)),
-                BatchSystemKind.Slurm => new SlurmBatchSystem(new SlurmOptions { Partition = machine.Partition, Account = machine.Account }),
-                _ => new PbsBatchSystem(new PbsOptions { Queue = machine.Partition, Account = machine.Account }),
+                BatchSystemKind.Local => new LocalBatchSystem(new LocalOptions(Path.Combine(root, "local-runner", cluster.Name), cluster.CoresPerNode, supervisor)),
+                BatchSystemKind.Slurm => new SlurmBatchSystem(new SlurmOptions { Partition = cluster.Partition, Account = cluster.Account }),
+                _ => new PbsBatchSystem(new PbsOptions { Queue = cluster.Partition, Account = cluster.Account }),
             };
-            systems[machine.Name] = new ResilientBatchSystem(inside is null ? adapter : inside(machine.Name, adapter), retry, time);
+            systems[cluster.Name] = new ResilientBatchSystem(inside is null ? adapter : inside(cluster.Name, adapter), retry, time);
         }
 
         return systems;

@@ -8,10 +8,10 @@ namespace Campaign.Tracking;
 /// <summary>
 /// One reconcile cycle over every tracked run, as small steps in order: once after a restore, find the jobs
 /// submitted after the backup by name; recover intents (submissions a crash left
-/// unconfirmed, looked up by job name), observe (one query per machine), end and charge legs (finish, continue
+/// unconfirmed, looked up by job name), observe (one query per cluster), end and charge legs (finish, continue
 /// from the newest valid checkpoint, hold), watch health (stalls, a growing constraint norm), submit within the
-/// budget rule; then record which machines were at fault and notify. Every state change is one SQLite transaction
-/// with its event row. A machine whose batch system fails is skipped for the rest of the cycle and its runs stay as
+/// budget rule; then record which clusters were at fault and notify. Every state change is one SQLite transaction
+/// with its event row. A cluster whose batch system fails is skipped for the rest of the cycle and its runs stay as
 /// they were. The caller holds the <see cref="DaemonLock"/>.
 /// </summary>
 public sealed class Reconciler
@@ -21,7 +21,7 @@ public sealed class Reconciler
     private readonly TimeProvider _time;
     private readonly IReadOnlyDictionary<string, string> _jobEnvironment;
 
-    /// <summary>Creates the reconciler over an open workspace, with one batch system per machine.</summary>
+    /// <summary>Creates the reconciler over an open workspace, with one batch system per cluster.</summary>
     public Reconciler(Workspace workspace, IReadOnlyDictionary<string, IBatchSystem> batch, TimeProvider time, IReadOnlyDictionary<string, string>? jobEnvironment = null)
     {
         _workspace = workspace;
@@ -39,7 +39,7 @@ public sealed class Reconciler
         await ObserveJobs.RunAsync(c, cancellationToken).ConfigureAwait(false);
         await WatchHealth.RunAsync(c, cancellationToken).ConfigureAwait(false);
         await SubmitLegs.RunAsync(c, cancellationToken).ConfigureAwait(false);
-        Machines.Record(c);
+        Clusters.Record(c);
 
         var failures = await new Notifier(c.Settings.NotifyCommand, _workspace.Root).SendAsync(c.Notices, cancellationToken).ConfigureAwait(false);
         c.Messages.AddRange(failures);

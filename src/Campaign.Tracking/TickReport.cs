@@ -1,6 +1,6 @@
 namespace Campaign.Tracking;
 
-/// <summary>What one reconcile cycle did; <c>Unreachable</c> lists the machines skipped this cycle because their batch system failed.</summary>
+/// <summary>What one reconcile cycle did; <c>Unreachable</c> lists the clusters skipped this cycle because their batch system failed.</summary>
 public sealed record TickReport(
     int Submitted,
     int Ended,
@@ -8,6 +8,6 @@ public sealed record TickReport(
     int Held,
     int WaitingBudget,
     int Active,
-    IReadOnlyDictionary<string, int> QueriesPerMachine,
+    IReadOnlyDictionary<string, int> QueriesPerCluster,
     IReadOnlyList<string> Messages,
     IReadOnlyList<string>? Unreachable = null);

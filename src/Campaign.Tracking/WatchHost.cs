@@ -4,7 +4,7 @@ namespace Campaign.Tracking;
 
 /// <summary>
 /// `campaign watch`: a Quartz scheduler in the foreground with two jobs, a reconcile cycle every N seconds and a
-/// daily summary at 08:00. Jobs never overlap; a trigger that misfires (the machine slept, a cycle ran long)
+/// daily summary at 08:00. Jobs never overlap; a trigger that misfires (the cluster slept, a cycle ran long)
 /// skips ahead to its next time rather than firing a burst. The triggers live in memory: they are rebuilt at
 /// every start and hold nothing worth keeping (a persistent trigger store was written at every fire, and on a
 /// full disk its write failures stopped the daemon); every fact of the campaign is in campaign.db, written by

@@ -14,12 +14,12 @@ using Campaign.Tracking.Cycle;
 
 namespace Campaign.App.Tests;
 
-/// <summary>The steps of the reconcile cycle, each on its own, against an in-memory machine on a simulated clock.</summary>
+/// <summary>The steps of the reconcile cycle, each on its own, against an in-memory cluster on a simulated clock.</summary>
 public sealed class CycleStepTests : IDisposable
 {
     private readonly TempFolder _folder = new();
     private readonly SimulatedClock _clock = new(new DateTimeOffset(2027, 2, 1, 8, 0, 0, TimeSpan.Zero));
-    private readonly Dictionary<string, SimulatedMachine> _machines = new(StringComparer.Ordinal);
+    private readonly Dictionary<string, SimulatedCluster> _clusters = new(StringComparer.Ordinal);
 
     public CycleStepTests()
     {
@@ -28,10 +28,10 @@ public sealed class CycleStepTests : IDisposable
         new CostModelService(_clock).Fit(Ws, new CostFitOptions());
         new PlanService(_clock).Select(new SelectRequest(Ws, Path.Combine(Ws, "candidates.csv"), "candidates.csv", SelectionObjective.Coverage, null, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
         var plan = new PlanService(_clock).Current(Ws)!;
-        new TrackService(_clock).Track(new TrackRequest(Ws, null, null, plan.ConfigIds.Where(id => plan.Runs.First(e => e.ConfigId == id).Machine == Cluster).Take(2).ToList(), false));
-        foreach (var profile in Workspaces.WorkspaceAdmin.Settings(Ws).Machines.Values)
+        new TrackService(_clock).Track(new TrackRequest(Ws, null, null, plan.ConfigIds.Where(id => plan.Runs.First(e => e.ConfigId == id).Cluster == Cluster).Take(2).ToList(), false));
+        foreach (var profile in Workspaces.WorkspaceAdmin.Settings(Ws).Clusters.Values)
         {
-            _machines[profile.Name] = new SimulatedMachine(_clock, profile, _ => 100, TimeSpan.FromHours(1));
+            _clusters[profile.Name] = new SimulatedCluster(_clock, profile, _ => 100, TimeSpan.FromHours(1));
         }
     }
 
@@ -41,7 +41,7 @@ public sealed class CycleStepTests : IDisposable
 
     public void Dispose() => _folder.Dispose();
 
-    private CycleContext Context(Workspace workspace) => new(workspace, _machines.ToDictionary(m => m.Key, m => (IBatchSystem)m.Value), _clock, new Dictionary<string, string>());
+    private CycleContext Context(Workspace workspace) => new(workspace, _clusters.ToDictionary(m => m.Key, m => (IBatchSystem)m.Value), _clock, new Dictionary<string, string>());
 
     [Fact]
     public async Task Recover_intents_finds_a_submission_the_batch_system_has_and_drops_one_it_never_got()
@@ -59,7 +59,7 @@ public sealed class CycleStepTests : IDisposable
 
         // The first submission reached the batch system before the host stopped; the second never did.
         var folder = Path.Combine(Ws, runs[0].Folder);
-        var id = await _machines[Cluster].SubmitAsync(new JobRequest(reached.JobName, "/bin/true", folder, 1, TimeSpan.FromHours(1), "o", "e", new Dictionary<string, string> { ["CAMPAIGN_RUN_ID"] = runs[0].RunId }), CancellationToken.None);
+        var id = await _clusters[Cluster].SubmitAsync(new JobRequest(reached.JobName, "/bin/true", folder, 1, TimeSpan.FromHours(1), "o", "e", new Dictionary<string, string> { ["CAMPAIGN_RUN_ID"] = runs[0].RunId }), CancellationToken.None);
 
         var c = Context(workspace);
         await RecoverIntents.RunAsync(c, CancellationToken.None);
@@ -73,12 +73,12 @@ public sealed class CycleStepTests : IDisposable
     }
 
     [Fact]
-    public async Task Submit_holds_only_the_run_whose_request_is_refused_and_a_broken_machine_leaves_every_run_as_it_was()
+    public async Task Submit_holds_only_the_run_whose_request_is_refused_and_a_broken_cluster_leaves_every_run_as_it_was()
     {
         using var workspace = Workspace.Open(Ws, _clock);
-        var runs = TrackingStore.Runs(workspace.Connection).Where(r => r.Machine == Cluster).ToList();
+        var runs = TrackingStore.Runs(workspace.Connection).Where(r => r.Cluster == Cluster).ToList();
         Assert.True(runs.Count >= 3);
-        _machines[Cluster].Refused.Add(JobName.For(workspace.Id, runs[1].RunId, 1));
+        _clusters[Cluster].Refused.Add(JobName.For(workspace.Id, runs[1].RunId, 1));
 
         var c = Context(workspace);
         await SubmitLegs.RunAsync(c, CancellationToken.None);
@@ -88,8 +88,8 @@ public sealed class CycleStepTests : IDisposable
         Assert.All(runs.Where(r => r.RunId != runs[1].RunId), r => Assert.Equal(RunState.Queued, after[r.RunId].State));
         Assert.Empty(c.Faults);
 
-        // Now the machine breaks: a released run's submission fails, the run is left as it was, the machine is at fault.
-        _machines[Cluster].Down = true;
+        // Now the cluster breaks: a released run's submission fails, the run is left as it was, the cluster is at fault.
+        _clusters[Cluster].Down = true;
         var release = TrackingStore.Run(workspace.Connection, runs[1].RunId)!;
         using (var tx = workspace.Connection.BeginTransaction())
         {
@@ -99,12 +99,12 @@ public sealed class CycleStepTests : IDisposable
 
         var broken = Context(workspace);
         await SubmitLegs.RunAsync(broken, CancellationToken.None);
-        Machines.Record(broken);
+        Clusters.Record(broken);
         Assert.Equal(RunState.Planned, TrackingStore.Run(workspace.Connection, runs[1].RunId)!.State);
         Assert.Equal(Cluster, Assert.Single(broken.Faults).Key);
         Assert.Single(broken.Messages, m => m.StartsWith(Cluster + ": unreachable (sbatch: error: s_p_parse_file", StringComparison.Ordinal));
-        Assert.Equal(1, _machines[Cluster].RefusedCalls); // skipped for the rest of the cycle after the first failure
-        var fault = Assert.Single(MachineFaultStore.All(workspace.Connection));
+        Assert.Equal(1, _clusters[Cluster].RefusedCalls); // skipped for the rest of the cycle after the first failure
+        var fault = Assert.Single(ClusterFaultStore.All(workspace.Connection));
         Assert.DoesNotContain('\n', fault.Message);
         Assert.Equal(runs.Count - 1, TrackingStore.Legs(workspace.Connection).Count);
     }
@@ -114,14 +114,14 @@ public sealed class CycleStepTests : IDisposable
     {
         // Regression (faults issue, item 5): the events showed queued -> failed (abandoned), then failed -> planned
         // (leg 1 never reached ...), then a new job.
-        var runs = new RunService(_clock, BatchAccess.Given(m => _machines[m]));
+        var runs = new RunService(_clock, BatchAccess.Given(m => _clusters[m]));
         string runId;
         using (var workspace = Workspace.Open(Ws, _clock))
         {
-            runId = TrackingStore.Runs(workspace.Connection).First(r => r.Machine == Cluster).RunId;
+            runId = TrackingStore.Runs(workspace.Connection).First(r => r.Cluster == Cluster).RunId;
         }
 
-        _machines[Cluster].LoseAnswers = true; // the job is queued, the answer never comes back
+        _clusters[Cluster].LoseAnswers = true; // the job is queued, the answer never comes back
         runs.Cycle(Ws);
         using (var workspace = Workspace.Open(Ws, _clock))
         {
@@ -129,7 +129,7 @@ public sealed class CycleStepTests : IDisposable
         }
 
         runs.Abandon(new RunSelection(Ws, new[] { runId }, null, null));
-        _machines[Cluster].LoseAnswers = false;
+        _clusters[Cluster].LoseAnswers = false;
         for (var i = 0; i < 3; i++)
         {
             _clock.Advance(TimeSpan.FromHours(2));
@@ -141,7 +141,7 @@ public sealed class CycleStepTests : IDisposable
         var legs = TrackingStore.LegsOf(db.Connection, runId);
         var only = Assert.Single(legs); // no second job for the given-up run
         Assert.Equal("abandoned", only.CancelReason);
-        Assert.Contains(only.JobId!, _machines[Cluster].Cancelled);
+        Assert.Contains(only.JobId!, _clusters[Cluster].Cancelled);
         Assert.DoesNotContain(TrackingStore.Events(db.Connection, runId), e => e.FromState == "failed" && e.ToState != "failed");
     }
 
@@ -157,7 +157,7 @@ public sealed class CycleStepTests : IDisposable
         new PlanService(_clock).Select(new SelectRequest(ws, Path.Combine(ws, "two.csv"), "two.csv", SelectionObjective.Coverage, 1e6, 0.5, Array.Empty<string>(), null, 0, 1500, 5, Save: true));
         Assert.Equal(3, new TrackService(_clock).Track(new TrackRequest(ws, null, null, null, false)).Added.Count);
 
-        var report = new RunService(_clock, BatchAccess.Given(m => _machines[m])).Cycle(ws);
+        var report = new RunService(_clock, BatchAccess.Given(m => _clusters[m])).Cycle(ws);
         Assert.Equal(3, report.Submitted);
         Assert.DoesNotContain(report.Messages, m => m.Contains("not submitted", StringComparison.Ordinal));
         using var db = Workspace.Open(ws, _clock);
@@ -172,13 +172,13 @@ public sealed class CycleStepTests : IDisposable
         using var other = new TempFolder();
         var ws = Path.Combine(other.Path, "ws");
         TestWorkspace.CreateTracking(ws, _clock, "sm-a,2,0,0.02,1,128,halyard,100000\n", "prequeue = true\n");
-        var machines = new Dictionary<string, SimulatedMachine>(StringComparer.Ordinal);
-        foreach (var profile in Workspaces.WorkspaceAdmin.Settings(ws).Machines.Values)
+        var clusters = new Dictionary<string, SimulatedCluster>(StringComparer.Ordinal);
+        foreach (var profile in Workspaces.WorkspaceAdmin.Settings(ws).Clusters.Values)
         {
-            machines[profile.Name] = new SimulatedMachine(_clock, profile, _ => 1000, TimeSpan.FromHours(1)); // 1000 h: many 48 h legs
+            clusters[profile.Name] = new SimulatedCluster(_clock, profile, _ => 1000, TimeSpan.FromHours(1)); // 1000 h: many 48 h legs
         }
 
-        var runs = new RunService(_clock, BatchAccess.Given(m => machines[m]));
+        var runs = new RunService(_clock, BatchAccess.Given(m => clusters[m]));
         for (var i = 0; i < 12; i++)
         {
             _clock.Advance(TimeSpan.FromHours(4));
@@ -195,7 +195,7 @@ public sealed class CycleStepTests : IDisposable
 
         // The code stops advancing: with stall_minutes = 2880 (48 h) the stall rule must still see it.
         File.WriteAllText(Path.Combine(ws, "campaign.toml"), File.ReadAllText(Path.Combine(ws, "campaign.toml")).Replace("stall_minutes = 2880", "stall_minutes = 600", StringComparison.Ordinal));
-        machines["halyard"].Stalled.Add("sm-a.res1");
+        clusters["halyard"].Stalled.Add("sm-a.res1");
         for (var i = 0; i < 8; i++)
         {
             _clock.Advance(TimeSpan.FromHours(4));
@@ -211,7 +211,7 @@ public sealed class CycleStepTests : IDisposable
     {
         // Regression (faults issue, item 6): a re-plan with --exclude of a tracked run left it to be submitted
         // anyway, outside the new plan's budget.
-        var runs = new RunService(_clock, BatchAccess.Given(m => _machines[m]));
+        var runs = new RunService(_clock, BatchAccess.Given(m => _clusters[m]));
         runs.Cycle(Ws); // the tracked runs are submitted
         string excluded;
         using (var workspace = Workspace.Open(Ws, _clock))
@@ -238,7 +238,7 @@ public sealed class CycleStepTests : IDisposable
             Assert.Equal(RunState.Failed, run.State);
             Assert.Equal("withdrawn from the campaign by plan 2", run.Reason);
             var leg = Assert.Single(TrackingStore.LegsOf(db.Connection, id));
-            Assert.Contains(leg.JobId!, _machines[Cluster].Cancelled);
+            Assert.Contains(leg.JobId!, _clusters[Cluster].Cancelled);
         }
     }
 }

@@ -35,23 +35,23 @@ public sealed class PlanAndReportTests : IDisposable
         new PlanService(_clock).Select(new SelectRequest(Ws, Path.Combine(Ws, "candidates.csv"), "candidates.csv", SelectionObjective.Coverage, null, 0.8, Array.Empty<string>(), null, 2, 1500, 5, Save: true));
         var plan = new PlanService(_clock).Current(Ws)!;
         var estimate = new EstimateService(_clock).Estimate(new EstimateRequest(Ws, Path.Combine(Ws, "candidates.csv"), "candidates.csv", new EstimateOptions { EccentricityTrials = 2 }));
-        // estimate shows a candidate on the first machine it lists; select may assign it to another one. Compare
-        // the configurations the plan put on that same machine (most of them).
-        var machineOf = plan.Entries.GroupBy(e => e.ConfigId).ToDictionary(g => g.Key, g => g.First().Machine);
-        var expected = estimate.Estimate.Runs.Where(r => machineOf.TryGetValue(r.Id, out var m) && m == r.Machine)
-            .Select(r => (Id: r.Id + (r.Kind == "ecc" ? " (trials)" : ""), r.Level, r.Machine, r.Median, r.Low, r.High, r.ChargedCoreHours, r.Legs))
+        // estimate shows a candidate on the first cluster it lists; select may assign it to another one. Compare
+        // the configurations the plan put on that same cluster (most of them).
+        var clusterOf = plan.Entries.GroupBy(e => e.ConfigId).ToDictionary(g => g.Key, g => g.First().Cluster);
+        var expected = estimate.Estimate.Runs.Where(r => clusterOf.TryGetValue(r.Id, out var m) && m == r.Cluster)
+            .Select(r => (Id: r.Id + (r.Kind == "ecc" ? " (trials)" : ""), r.Level, r.Cluster, r.Median, r.Low, r.High, r.ChargedCoreHours, r.Legs))
             .OrderBy(r => r.Id, StringComparer.Ordinal).ThenBy(r => r.Level).ToList();
 
         var data = new ReportService(_clock).Gather(new ReportRequest(Ws, Path.Combine(_folder.Path, "report"), null, null, 50));
         Assert.Equal(plan.Entries.Count, data.Proposal.Count);
         var compared = expected.Select(e => e.Id).ToHashSet(StringComparer.Ordinal);
-        var table = data.Proposal.Where(r => compared.Contains(r.Id)).Select(r => (r.Id, r.Level, r.Machine, r.Median, r.Low, r.High, r.Charged, r.Legs))
+        var table = data.Proposal.Where(r => compared.Contains(r.Id)).Select(r => (r.Id, r.Level, r.Cluster, r.Median, r.Low, r.High, r.Charged, r.Legs))
             .OrderBy(r => r.Id, StringComparer.Ordinal).ThenBy(r => r.Level).ToList();
         Assert.True(compared.Count * 2 >= data.Proposal.Select(r => r.Id).Distinct().Count(), $"only {compared.Count} configurations to compare");
         Assert.Equal(expected.Count, table.Count);
         for (var i = 0; i < expected.Count; i++)
         {
-            Assert.Equal((expected[i].Id, expected[i].Level, expected[i].Machine, expected[i].Legs), (table[i].Id, table[i].Level, table[i].Machine, table[i].Legs));
+            Assert.Equal((expected[i].Id, expected[i].Level, expected[i].Cluster, expected[i].Legs), (table[i].Id, table[i].Level, table[i].Cluster, table[i].Legs));
             Assert.Equal(expected[i].Median, table[i].Median, 9);
             Assert.Equal(expected[i].Low, table[i].Low, 9);
             Assert.Equal(expected[i].High, table[i].High, 9);
@@ -63,7 +63,7 @@ public sealed class PlanAndReportTests : IDisposable
         Assert.Contains(table, r => r.Level == 3);
 
         // The burn-down's plan line and the forecast cover the whole plan before anything is tracked.
-        Assert.All(data.Allocations, a => Assert.Equal(plan.Entries.Where(e => e.Machine == a.Machine).Sum(e => e.Estimate.ChargedCoreHours), a.PlannedCoreHours, 6));
+        Assert.All(data.Allocations, a => Assert.Equal(plan.Entries.Where(e => e.Cluster == a.Cluster).Sum(e => e.Estimate.ChargedCoreHours), a.PlannedCoreHours, 6));
         var forecast = new ForecastService(_clock).Forecast(new ForecastRequest(Ws, 20, 1));
         Assert.Equal(plan.Runs.Count(), forecast.RunsLeft);
         Assert.Equal(plan.Runs.Count(), data.Forecast!.Runs.Count);
@@ -97,12 +97,12 @@ public sealed class PlanAndReportTests : IDisposable
         var log = Store.RunLogStore.All(db.Connection).Single(l => l.RunId == config + ".res1");
         using (var tx = db.Connection.BeginTransaction())
         {
-            Assert.False(Store.TrackingStore.LogFinishedRun(db.Connection, tx, log with { Machine = "halyard", WallHours = 1 }, _clock.GetUtcNow()));
+            Assert.False(Store.TrackingStore.LogFinishedRun(db.Connection, tx, log with { Cluster = "halyard", WallHours = 1 }, _clock.GetUtcNow()));
             tx.Commit();
         }
 
         var kept = Store.RunLogStore.All(db.Connection).Single(l => l.RunId == config + ".res1");
-        Assert.Equal((7.0, "gunwale", 1597.0), (kept.Configuration.Q.Value, kept.Machine, kept.WallHours));
+        Assert.Equal((7.0, "gunwale", 1597.0), (kept.Configuration.Q.Value, kept.Cluster, kept.WallHours));
     }
 
     [Fact]
@@ -113,8 +113,8 @@ public sealed class PlanAndReportTests : IDisposable
         var estimate = new EstimateService(_clock);
         var device = Assert.Throws<InvalidInputException>(() => estimate.Estimate(new EstimateRequest(Ws, "/dev/zero", "/dev/zero", new EstimateOptions())));
         Assert.Equal("/dev/zero: not a regular file (a device or a pipe gives more than the 0 bytes it states): expected a candidate file (CSV)", Assert.Single(device.Problems));
-        var folder = Assert.Throws<InvalidInputException>(() => estimate.Estimate(new EstimateRequest(Ws, Path.Combine(Ws, "machines"), "machines", new EstimateOptions())));
-        Assert.Equal("machines: is a directory: expected a candidate file (CSV)", Assert.Single(folder.Problems));
+        var folder = Assert.Throws<InvalidInputException>(() => estimate.Estimate(new EstimateRequest(Ws, Path.Combine(Ws, "clusters"), "clusters", new EstimateOptions())));
+        Assert.Equal("clusters: is a directory: expected a candidate file (CSV)", Assert.Single(folder.Problems));
 
         var file = Path.Combine(Ws, "long.csv");
         File.WriteAllText(file, "id,q,chi1z,omega0\nlong,1000,0,0.0001\n");

@@ -16,8 +16,8 @@ using Xunit.Abstractions;
 namespace Campaign.App.Tests;
 
 /// <summary>
-/// A year of a campaign in seconds: the services and the reconcile cycle driven against in-memory machines on a
-/// simulated clock. Plan, track part of it, rehearse, run, lose a machine for a week, give a run up, refit, re-plan
+/// A year of a campaign in seconds: the services and the reconcile cycle driven against in-memory clusters on a
+/// simulated clock. Plan, track part of it, rehearse, run, lose a cluster for a week, give a run up, refit, re-plan
 /// with a smaller budget, forecast, run to the end of the year; the lifecycle invariants are checked after every
 /// cycle against the database directly (not through the code that derives them).
 /// </summary>
@@ -28,7 +28,7 @@ public sealed class SimulatedYearTests : IDisposable
     private readonly ITestOutputHelper _output;
     private readonly TempFolder _folder = new();
     private readonly SimulatedClock _clock = new(new DateTimeOffset(2027, 1, 4, 8, 0, 0, TimeSpan.Zero));
-    private readonly Dictionary<string, SimulatedMachine> _machines = new(StringComparer.Ordinal);
+    private readonly Dictionary<string, SimulatedCluster> _clusters = new(StringComparer.Ordinal);
     private readonly Dictionary<string, double> _wallHours = new(StringComparer.Ordinal);
     private readonly RunService _runs;
     private int _cycles;
@@ -37,13 +37,13 @@ public sealed class SimulatedYearTests : IDisposable
     {
         _output = output;
         TestWorkspace.Create(Ws, _clock);
-        var (_, machines) = WorkspaceAdmin.Settings(Ws);
-        foreach (var profile in machines.Values)
+        var (_, clusters) = WorkspaceAdmin.Settings(Ws);
+        foreach (var profile in clusters.Values)
         {
-            _machines[profile.Name] = new SimulatedMachine(_clock, profile, HoursToFinish, TimeSpan.FromHours(3));
+            _clusters[profile.Name] = new SimulatedCluster(_clock, profile, HoursToFinish, TimeSpan.FromHours(3));
         }
 
-        _runs = new RunService(_clock, BatchAccess.Given(m => _machines[m]));
+        _runs = new RunService(_clock, BatchAccess.Given(m => _clusters[m]));
     }
 
     private string Ws => Path.Combine(_folder.Path, "ws");
@@ -84,29 +84,29 @@ public sealed class SimulatedYearTests : IDisposable
         Cycles(4);
         Assert.True(Scalar("SELECT count(*) FROM legs WHERE phase = 'ended'") > 0);
 
-        // 4. The cluster's batch commands break for a week: its runs stay exactly as they were, the machine is marked.
-        var cluster = plan.Runs.First().Machine;
-        var before = Records().Where(r => r.Machine == cluster && !r.Rehearsal).ToDictionary(r => r.RunId, r => (r.State, r.Reason));
+        // 4. The cluster's batch commands break for a week: its runs stay exactly as they were, the cluster is marked.
+        var cluster = plan.Runs.First().Cluster;
+        var before = Records().Where(r => r.Cluster == cluster && !r.Rehearsal).ToDictionary(r => r.RunId, r => (r.State, r.Reason));
         var legsBefore = Scalar("SELECT count(*) FROM legs");
         Assert.Contains(before.Values, r => r.State is RunState.Queued or RunState.Running);
-        _machines[cluster].Down = true;
+        _clusters[cluster].Down = true;
         for (var i = 0; i < 14; i++)
         {
             var report = Cycle();
             Assert.Contains(cluster, report.Unreachable!);
             Assert.Single(report.Messages, m => m.StartsWith(cluster + ": unreachable", StringComparison.Ordinal));
-            Assert.Equal(before, Records().Where(r => r.Machine == cluster && !r.Rehearsal).ToDictionary(r => r.RunId, r => (r.State, r.Reason)));
+            Assert.Equal(before, Records().Where(r => r.Cluster == cluster && !r.Rehearsal).ToDictionary(r => r.RunId, r => (r.State, r.Reason)));
         }
 
         Assert.Equal(legsBefore, Scalar("SELECT count(*) FROM legs"));
         var status = new StatusService(_clock).Status(Ws, 0);
-        var fault = Assert.Single(status.MachineFaults);
-        Assert.Equal(cluster, fault.Machine);
+        var fault = Assert.Single(status.ClusterFaults);
+        Assert.Equal(cluster, fault.Cluster);
         Assert.DoesNotContain('\n', fault.Message);
         Assert.Equal(0, Scalar("SELECT count(*) FROM tracked_runs WHERE state = 'held'"));
-        _machines[cluster].Down = false;
+        _clusters[cluster].Down = false;
         Cycle();
-        Assert.Empty(new StatusService(_clock).Status(Ws, 0).MachineFaults);
+        Assert.Empty(new StatusService(_clock).Status(Ws, 0).ClusterFaults);
 
         // 5. A human gives one configuration up while it runs; its jobs are cancelled and charged once.
         var givenUp = Records().First(r => !r.Rehearsal && r.State is RunState.Queued or RunState.Running).ConfigId;
@@ -205,12 +205,12 @@ public sealed class SimulatedYearTests : IDisposable
         Assert.Equal(planRuns - tracked, standing.Runs.Count(s => s.Status == PlanRunStatus.ToCome));
         Assert.All(standing.Runs.Where(s => s.Run is not null), s => Assert.False(s.Run!.Rehearsal));
 
-        // Spending is never counted twice: what the tracker charged is what the machines ran, job by job.
+        // Spending is never counted twice: what the tracker charged is what the clusters ran, job by job.
         var charged = db.ExecuteScalar<double?>("SELECT sum(charged_core_hours) FROM legs") ?? 0;
-        var ran = _machines.Values.Sum(m => m.ChargedByTheSite);
-        Assert.True(Math.Abs(charged - ran) <= 1e-6 * Math.Max(1, ran), $"cycle {_cycles}: charged {charged} but the machines ran {ran}");
+        var ran = _clusters.Values.Sum(m => m.ChargedByTheSite);
+        Assert.True(Math.Abs(charged - ran) <= 1e-6 * Math.Max(1, ran), $"cycle {_cycles}: charged {charged} but the clusters ran {ran}");
         Assert.Equal(db.ExecuteScalar<long>("SELECT count(*) FROM legs WHERE job_id IS NOT NULL"), db.ExecuteScalar<long>("SELECT count(DISTINCT job_id) FROM legs WHERE job_id IS NOT NULL"));
-        var names = _machines.Values.SelectMany(m => m.SubmittedNames).ToList();
+        var names = _clusters.Values.SelectMany(m => m.SubmittedNames).ToList();
         Assert.Equal(names.Count, names.Distinct().Count());
 
         // The run logs hold every finished real run once and no rehearsal.

@@ -14,7 +14,7 @@ public sealed class WorkspaceFaultTests : IDisposable
 {
     private readonly TempFolder _folder = new();
     private readonly SimulatedClock _clock = new(new DateTimeOffset(2027, 2, 1, 8, 0, 0, TimeSpan.Zero));
-    private readonly Dictionary<string, SimulatedMachine> _machines = new(StringComparer.Ordinal);
+    private readonly Dictionary<string, SimulatedCluster> _clusters = new(StringComparer.Ordinal);
 
     public WorkspaceFaultTests()
     {
@@ -24,9 +24,9 @@ public sealed class WorkspaceFaultTests : IDisposable
         }
 
         // One queue shared by both workspaces, as one user's queue on one cluster.
-        foreach (var profile in WorkspaceAdmin.Settings(A).Machines.Values)
+        foreach (var profile in WorkspaceAdmin.Settings(A).Clusters.Values)
         {
-            _machines[profile.Name] = new SimulatedMachine(_clock, profile, _ => 1000, TimeSpan.FromHours(1));
+            _clusters[profile.Name] = new SimulatedCluster(_clock, profile, _ => 1000, TimeSpan.FromHours(1));
         }
     }
 
@@ -36,12 +36,12 @@ public sealed class WorkspaceFaultTests : IDisposable
 
     public void Dispose() => _folder.Dispose();
 
-    private RunService Runs => new(_clock, BatchAccess.Given(m => _machines[m]));
+    private RunService Runs => new(_clock, BatchAccess.Given(m => _clusters[m]));
 
     [Fact]
     public void A_lost_submission_answer_never_adopts_or_cancels_another_workspaces_job()
     {
-        // Regression (faults issue, item 1): both workspaces track c1.res1 on one machine; B's submission times out,
+        // Regression (faults issue, item 1): both workspaces track c1.res1 on one cluster; B's submission times out,
         // and B's next cycle found A's job by its name, adopted it, and 'abandon' in B cancelled it.
         Runs.Cycle(A);
         string aJob;
@@ -50,9 +50,9 @@ public sealed class WorkspaceFaultTests : IDisposable
             aJob = TrackingStore.LegsOf(a.Connection, "c1.res1").Single().JobId!;
         }
 
-        _machines["halyard"].TimeOutSubmissions = true;
+        _clusters["halyard"].TimeOutSubmissions = true;
         Runs.Cycle(B);
-        _machines["halyard"].TimeOutSubmissions = false;
+        _clusters["halyard"].TimeOutSubmissions = false;
         _clock.Advance(TimeSpan.FromMinutes(10));
         Runs.Cycle(B);
 
@@ -64,7 +64,7 @@ public sealed class WorkspaceFaultTests : IDisposable
         }
 
         Runs.Abandon(new RunSelection(B, new[] { "c1.res1" }, null, null));
-        Assert.DoesNotContain(aJob, _machines["halyard"].Cancelled);
+        Assert.DoesNotContain(aJob, _clusters["halyard"].Cancelled);
     }
 
     [Fact]
@@ -133,7 +133,7 @@ public sealed class WorkspaceFaultTests : IDisposable
         Runs.Cycle(A);
         _clock.Advance(TimeSpan.FromHours(2));
         Runs.Cycle(A);
-        Assert.Equal(2, _machines["halyard"].SubmittedNames.Count);
+        Assert.Equal(2, _clusters["halyard"].SubmittedNames.Count);
 
         // The restore, as docs/operations.md says: stop, copy the backup's files into place, start again.
         foreach (var side in new[] { "campaign.db-wal", "campaign.db-shm" })
@@ -144,7 +144,7 @@ public sealed class WorkspaceFaultTests : IDisposable
         File.Copy(Path.Combine(backup.Destination, "campaign.db"), Path.Combine(A, "campaign.db"), overwrite: true);
         var report = Runs.Cycle(A);
 
-        var names = _machines["halyard"].SubmittedNames.ToList();
+        var names = _clusters["halyard"].SubmittedNames.ToList();
         Assert.Equal(names.Count, names.Distinct().Count());
         Assert.Equal(2, names.Count);
         Assert.Contains(report.Messages, m => m.StartsWith("after a restore: 1 jobs submitted after the backup were found by name", StringComparison.Ordinal));
@@ -156,14 +156,14 @@ public sealed class WorkspaceFaultTests : IDisposable
     }
 
     [Fact]
-    public void Check_refuses_a_stall_time_no_shorter_than_a_machines_legs_naming_the_line_and_the_machines()
+    public void Check_refuses_a_stall_time_no_shorter_than_a_clusters_legs_naming_the_line_and_the_clusters()
     {
         // Regression (faults issue, item 10): the shipped workstation profile (2 h) with the default 120 min stall
-        // time could never see a stall. The test workspace's stall_minutes = 2880 is no shorter than any machine's limit.
+        // time could never see a stall. The test workspace's stall_minutes = 2880 is no shorter than any cluster's limit.
         var error = Assert.Throws<InvalidInputException>(() => new WorkspaceAdmin(_clock).Check(A));
         var problem = Assert.Single(error.Problems);
         Assert.Equal($"{Path.Combine(A, "campaign.toml")}:", problem[..(Path.Combine(A, "campaign.toml").Length + 1)]);
-        Assert.EndsWith(":60:1: stall_minutes = 2880: expected less than the leg wall time of every machine (halyard 2880 min, gunwale 1440 min, workbench 1440 min): a stall could never be seen before the wall-time limit ends the leg", problem, StringComparison.Ordinal);
+        Assert.EndsWith(":60:1: stall_minutes = 2880: expected less than the leg wall time of every cluster (halyard 2880 min, gunwale 1440 min, workbench 1440 min): a stall could never be seen before the wall-time limit ends the leg", problem, StringComparison.Ordinal);
 
         File.WriteAllText(Path.Combine(A, "campaign.toml"), File.ReadAllText(Path.Combine(A, "campaign.toml")).Replace("stall_minutes = 2880", "stall_minutes = 600", StringComparison.Ordinal));
         Assert.Equal("ok", new WorkspaceAdmin(_clock).Check(A).Integrity);

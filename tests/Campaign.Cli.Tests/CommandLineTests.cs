@@ -11,7 +11,7 @@ public class CommandLineTests
         using var folder = new TempFolder();
         var run = CliRun.Of(folder.Path, "--help");
         Assert.Equal(0, run.ExitCode);
-        foreach (var command in new[] { "init", "check", "length", "machines", "demo" })
+        foreach (var command in new[] { "init", "check", "length", "clusters", "demo" })
         {
             Assert.Contains("  " + command, run.Out);
         }

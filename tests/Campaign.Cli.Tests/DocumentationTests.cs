@@ -165,7 +165,7 @@ public class DocumentationTests
         Assert.Contains("reconcile_seconds", configFields);
         Assert.Contains("extraction_radius_m", configFields);
         var missing = configFields.Where(f => !Regex.IsMatch(docs, $"(^|\\n|\\[|\\.)\\[*{f}\\]*( =|\\]|\\n)|`{f}`")).Select(f => "campaign.toml: " + f)
-            .Concat(Campaign.Core.Configuration.MachineProfileReader.Fields.Where(f => !docs.Contains($"`{f}`", StringComparison.Ordinal)).Select(f => "profile: " + f))
+            .Concat(Campaign.Core.Configuration.ClusterProfileReader.Fields.Where(f => !docs.Contains($"`{f}`", StringComparison.Ordinal)).Select(f => "profile: " + f))
             .Concat(Campaign.Core.Configuration.CandidateReader.Columns.Where(f => !docs.Contains($"`{f}`", StringComparison.Ordinal)).Select(f => "candidates: " + f))
             .Concat(Campaign.Core.Configuration.RunLogReader.KnownColumns.Where(f => !docs.Contains($"`{f}`", StringComparison.Ordinal)).Select(f => "run logs: " + f))
             .ToList();

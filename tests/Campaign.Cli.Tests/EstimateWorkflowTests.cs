@@ -61,7 +61,7 @@ public class EstimateWorkflowTests
         using var folder = Workspace();
         var md = CliRun.Of(folder.Path, "--dir", "ws", "estimate", "ws/candidates.csv", "--format", "md");
         Assert.Equal(0, md.ExitCode);
-        Assert.StartsWith("| id | level | kind | machine |", md.Out);
+        Assert.StartsWith("| id | level | kind | cluster |", md.Out);
         var csv = CliRun.Of(folder.Path, "--dir", "ws", "estimate", "ws/candidates.csv", "--format", "csv");
         Assert.Equal(0, csv.ExitCode);
         var lines = csv.Out.Split('\n', StringSplitOptions.RemoveEmptyEntries);
@@ -83,7 +83,7 @@ public class EstimateWorkflowTests
         var hash = SHA256.HashData(File.ReadAllBytes(db));
         var run = CliRun.Of(folder.Path, "--dir", "ws", "logs", "import", "bad.csv");
         Assert.Equal(2, run.ExitCode);
-        Assert.Contains("bad.csv:3:12: cluster = nowhere: expected a machine with a profile: gunwale, halyard, workbench", run.Err);
+        Assert.Contains("bad.csv:3:12: cluster = nowhere: expected a cluster with a profile: gunwale, halyard, workbench", run.Err);
         Assert.Contains("bad.csv:5:14: outcome = finished: expected completed, failed or partial", run.Err);
         Assert.Equal(hash, SHA256.HashData(File.ReadAllBytes(db)));
         Assert.Equal(before, CliRun.Of(folder.Path, "--dir", "ws", "logs", "list", "--json").Json().GetProperty("runs").GetArrayLength());

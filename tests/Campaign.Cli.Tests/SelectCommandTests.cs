@@ -32,7 +32,7 @@ public class SelectCommandTests
     }
 
     [Fact]
-    public void Allocations_give_one_budget_per_machine_and_an_assignment()
+    public void Allocations_give_one_budget_per_cluster_and_an_assignment()
     {
         using var folder = Demo();
         var json = CliRun.Of(folder.Path, "--dir", "ws", "select", "ws/candidates.csv", "--json").Json();
@@ -102,7 +102,7 @@ public class SelectCommandTests
         Assert.Equal(2, json.GetProperty("plan_id").GetInt64());
         var carried = json.GetProperty("carried_over").EnumerateArray().ToList();
         Assert.Equal(started, Assert.Single(carried).GetProperty("config_id").GetString());
-        Assert.Equal("workbench", carried[0].GetProperty("machine").GetString());
+        Assert.Equal("workbench", carried[0].GetProperty("cluster").GetString());
         var remaining = carried[0].GetProperty("remaining_cost").GetDouble();
         Assert.True(remaining > 0);
         Assert.Equal(remaining, json.GetProperty("reserved").EnumerateObject().Sum(p => p.Value.GetDouble()), 6); // nothing charged yet: the reserve is what it still needs

@@ -140,7 +140,7 @@ public sealed class TrackingTests : IDisposable
         connection.Open();
         Assert.Equal("ok", Scalar(connection, "PRAGMA integrity_check"));
         // Every leg submitted is recorded (none left as a bare intent), and the charges add up: each finished
-        // run's logged charge is the sum of its recorded legs' charges, and so is the machine's total.
+        // run's logged charge is the sum of its recorded legs' charges, and so is the cluster's total.
         Assert.Equal(0L, Scalar(connection, "SELECT COUNT(*) FROM legs WHERE phase <> 'ended'"));
         Assert.Equal((long)names.Count, Scalar(connection, "SELECT COUNT(*) FROM legs WHERE job_id IS NOT NULL AND job_id <> ''"));
         using var sums = connection.CreateCommand();
@@ -199,7 +199,7 @@ public sealed class TrackingTests : IDisposable
     [Fact]
     public void A_leg_the_warning_ends_before_the_code_starts_is_too_short_not_a_failure_and_five_in_a_row_hold_the_run()
     {
-        // Regression (lifecycle issue): on a loaded machine the warning signal reached the demo payload before it had
+        // Regression (lifecycle issue): on a loaded cluster the warning signal reached the demo payload before it had
         // installed its handler, and the run was held as failed. Here the code takes 5 s to start and the warning
         // comes after 2 s, every time.
         Prepare("sm-q1-a00", rehearsal: true);
@@ -270,7 +270,7 @@ public sealed class TrackingTests : IDisposable
     public void The_budget_guard_stops_submission_at_the_line_and_says_which_runs_wait()
     {
         // One leg on the workstation may charge 1 core x 3 s = 1/1200 core-hour; the allocation has room for two.
-        Prepare("sm-q1-a00", "\n[[allocation]]\nmachine = \"workbench\"\namount = 0.0018\nunit = \"core-hours\"\nstart = 2025-01-01\nend = 2030-12-31\n");
+        Prepare("sm-q1-a00", "\n[[allocation]]\ncluster = \"workbench\"\namount = 0.0018\nunit = \"core-hours\"\nstart = 2025-01-01\nend = 2030-12-31\n");
         var tick = CliRun.Live(_folder.Path, "--dir", "ws", "tick", "--json").Json();
         Assert.Equal(2, tick.GetProperty("submitted").GetInt32());
         var runs = Status().EnumerateArray().ToList();
@@ -316,7 +316,7 @@ public sealed class TrackingTests : IDisposable
         var pieces = RunFolder("pieces");
         for (var i = 0; i < 3; i++)
         {
-            // Signal it once it has made progress (its handler is installed before its first step), however loaded the machine.
+            // Signal it once it has made progress (its handler is installed before its first step), however loaded the cluster.
             var progress = Path.Combine(pieces, "progress.dat");
             var before = File.Exists(progress) ? new FileInfo(progress).Length : 0;
             using var p = Payload(pieces, i == 0 ? null : "newest", 3000);

@@ -16,6 +16,33 @@ public class WorkspaceCommandTests
         Assert.Equal("My campaign", json.GetProperty("name").GetString());
         Assert.Equal("ok", json.GetProperty("integrity").GetString());
         Assert.Equal(Campaign.Store.Schema.Migrations.Latest, json.GetProperty("schema_version").GetInt32());
+        // A real workspace starts with the local workstation and a commented template, never the demo's invented clusters.
+        Assert.Equal(new[] { "workbench" }, json.GetProperty("clusters").EnumerateArray().Select(c => c.GetString()));
+        Assert.Equal(new[] { "cluster.toml.example", "workbench.toml" }, Directory.GetFiles(folder.File("ws/clusters")).Select(Path.GetFileName).Order(StringComparer.Ordinal));
+        Assert.DoesNotContain("halyard", File.ReadAllText(folder.File("ws/campaign.toml")), StringComparison.Ordinal);
+        Assert.Empty(json.GetProperty("notices").EnumerateArray());
+    }
+
+    [Fact]
+    public void A_workspace_written_with_the_former_names_is_read_and_check_names_each_one_to_rename()
+    {
+        using var folder = new TempFolder();
+        Assert.Equal(0, CliRun.Of(folder.Path, "init", "ws").ExitCode);
+        Directory.Move(folder.File("ws/clusters"), folder.File("ws/machines"));
+        var config = File.ReadAllText(folder.File("ws/campaign.toml"))
+            .Replace("clusters = [", "machines = [", StringComparison.Ordinal)
+            .Replace("default_cluster =", "default_machine =", StringComparison.Ordinal)
+            + "\n[[allocation]]\nmachine = \"workbench\"\namount = 1000\nunit = \"core-hours\"\nstart = 2027-01-01\nend = 2027-12-31\n\n[tracking]\nsegment_minutes = 300\n";
+        File.WriteAllText(folder.File("ws/campaign.toml"), config);
+
+        var check = CliRun.Of(folder.Path, "--dir", "ws", "check", "--json");
+        Assert.Equal(0, check.ExitCode);
+        var notices = check.Json().GetProperty("notices").EnumerateArray().Select(n => n.GetString()!).ToList();
+        Assert.Equal(5, notices.Count);
+        Assert.Contains(notices, n => n.EndsWith("machines: the former name of the profiles' folder 'clusters'; read as that (rename it)", StringComparison.Ordinal));
+        Assert.Contains(notices, n => n.EndsWith(": 'campaign.machines' is the former name of 'campaign.clusters'; read as that (rename it)", StringComparison.Ordinal));
+        Assert.Contains(notices, n => n.EndsWith(": 'tracking.segment_minutes' is the former name of 'tracking.leg_minutes'; read as that (rename it)", StringComparison.Ordinal));
+        Assert.Equal("workbench", check.Json().GetProperty("allocations")[0].GetProperty("cluster").GetString());
     }
 
     [Fact]
@@ -47,15 +74,15 @@ public class WorkspaceCommandTests
     }
 
     [Fact]
-    public void Machines_lists_the_built_in_profiles_and_check_locates_errors()
+    public void Clusters_lists_the_built_in_profiles_and_check_locates_errors()
     {
         using var folder = new TempFolder();
-        var list = CliRun.Of(folder.Path, "machines", "--json");
+        var list = CliRun.Of(folder.Path, "clusters", "--json");
         Assert.Equal(0, list.ExitCode);
-        Assert.Equal(3, list.Json().GetProperty("machines").GetArrayLength());
+        Assert.Equal(3, list.Json().GetProperty("clusters").GetArrayLength());
 
         File.WriteAllText(folder.File("m.toml"), "name = \"m\"\nbatch_system = \"slurm\"\ncores_per_node = 0\nmemory_per_node_gb = 4\nwall_limit_hours = 1\ncharge_whole_nodes = true\n");
-        var check = CliRun.Of(folder.Path, "machines", "check", "m.toml");
+        var check = CliRun.Of(folder.Path, "clusters", "check", "m.toml");
         Assert.Equal(2, check.ExitCode);
         Assert.Contains("m.toml:3:18: cores_per_node = 0: expected an integer from 1 to 100000", check.Err);
     }
@@ -96,7 +123,7 @@ public class WorkspaceCommandTests
         Assert.Equal($"plan 1: {left} runs left (3 tracked, {left - 3} to come; 0 finished)", json.GetProperty("source").GetString());
         Assert.Equal(left, json.GetProperty("runs_left").GetInt32());
         Assert.Equal(left, json.GetProperty("runs").GetArrayLength());
-        var workbench = json.GetProperty("runs").EnumerateArray().Where(r => r.GetProperty("machine").GetString() == "workbench").Select(r => r.GetProperty("id").GetString()).Order(StringComparer.Ordinal);
+        var workbench = json.GetProperty("runs").EnumerateArray().Where(r => r.GetProperty("cluster").GetString() == "workbench").Select(r => r.GetProperty("id").GetString()).Order(StringComparer.Ordinal);
         Assert.Equal(new[] { "sm-q1-a00.res1", "sm-q1-a00.res2", "sm-q1-a00.res3" }, workbench);
         Assert.Equal(2, CliRun.Of(folder.Path, "--dir", "ws", "forecast", "--replicas", "5").ExitCode);
     }
@@ -109,7 +136,7 @@ public class WorkspaceCommandTests
         Assert.Equal(0, CliRun.Of(folder.Path, "--dir", "ws", "track", "--on", "workbench", "--cores", "1", "--only", "sm-q1-a00").ExitCode);
         var json = CliRun.Of(folder.Path, "--dir", "ws", "backup", "copy", "--json").Json();
         Assert.Equal("ok", json.GetProperty("integrity").GetString());
-        Assert.Contains("machines/halyard.toml", json.GetProperty("files").EnumerateArray().Select(f => f.GetString()));
+        Assert.Contains("clusters/halyard.toml", json.GetProperty("files").EnumerateArray().Select(f => f.GetString()));
         Assert.Equal(UnixFileMode.UserRead | UnixFileMode.UserWrite, File.GetUnixFileMode(Path.Combine(folder.Path, "copy", "campaign.db")));
 
         // The copy is a workspace with the same history: same logs, plan and tracked runs.

@@ -16,7 +16,7 @@ public class RunLogStoreTests
 
     private static Workspace NewWorkspace(TempFolder folder)
     {
-        var template = new WorkspaceTemplate("[campaign]\nname = \"T\"\nmachines = [\"box\"]\n", new Dictionary<string, string>
+        var template = new WorkspaceTemplate("[campaign]\nname = \"T\"\nclusters = [\"box\"]\n", new Dictionary<string, string>
         {
             ["box.toml"] = "name = \"box\"\nbatch_system = \"local\"\ncores_per_node = 8\nmemory_per_node_gb = 32\nwall_limit_hours = 4\ncharge_whole_nodes = false\n",
         });

@@ -17,7 +17,7 @@ public class WorkspaceTests
     private const string Config = """
         [campaign]
         name = "Test"
-        machines = ["box"]
+        clusters = ["box"]
         """;
 
     private static WorkspaceTemplate Template(string config = Config, string profile = Profile) =>
@@ -32,7 +32,7 @@ public class WorkspaceTests
         Assert.Equal(3, written.Count);
         using var workspace = Workspace.Open(root, FixedTime.Default);
         Assert.Equal("Test", workspace.Config.Name);
-        Assert.Equal(8, workspace.Machine("box").CoresPerNode);
+        Assert.Equal(8, workspace.Cluster("box").CoresPerNode);
         Assert.Equal("Test", workspace.Connection.ExecuteScalar<string>("SELECT value FROM workspace_info WHERE key = 'name'"));
         var events = EventLog.Recent(workspace.Connection, 10);
         Assert.Equal("workspace.init", Assert.Single(events).Kind);
@@ -64,7 +64,7 @@ public class WorkspaceTests
         using var folder = new TempFolder();
         var root = Path.Combine(folder.Path, "ws");
         var error = Assert.Throws<InvalidInputException>(() => WorkspaceCreator.Create(root, Template(profile: Profile.Replace("cores_per_node = 8", "cores_per_node = -8", StringComparison.Ordinal)), false, FixedTime.Default));
-        Assert.Equal(new[] { "machines/box.toml:3:18: cores_per_node = -8: expected an integer from 1 to 100000", "campaign.toml:3:12: campaign.machines = [\"box\"]: expected machine names with a profile; \"box\" has none (known: (no machine profiles found))" }, error.Problems);
+        Assert.Equal(new[] { "clusters/box.toml:3:18: cores_per_node = -8: expected an integer from 1 to 100000", "campaign.toml:3:12: campaign.clusters = [\"box\"]: expected cluster names with a profile; \"box\" has none (known: (no cluster profiles found))" }, error.Problems);
         Assert.False(Directory.Exists(root));
     }
 
@@ -73,9 +73,9 @@ public class WorkspaceTests
     {
         using var folder = new TempFolder();
         WorkspaceCreator.Create(folder.Path, Template(), false, FixedTime.Default);
-        File.WriteAllText(Path.Combine(folder.Path, "machines", "other.toml"), Profile);
+        File.WriteAllText(Path.Combine(folder.Path, "clusters", "other.toml"), Profile);
         var error = Assert.Throws<InvalidInputException>(() => Workspace.Open(folder.Path, FixedTime.Default));
-        Assert.Equal($"{Path.Combine(folder.Path, "machines", "other.toml")}: name = \"box\": expected \"other\", the file's name (one file per machine, named after it)", error.Message);
+        Assert.Equal($"{Path.Combine(folder.Path, "clusters", "other.toml")}: name = \"box\": expected \"other\", the file's name (one file per cluster, named after it)", error.Message);
     }
 
     [Fact]
@@ -110,17 +110,17 @@ public class WorkspaceTests
         var edited = Config.Replace("name = \"Test\"", "name = \"Our real campaign\"", StringComparison.Ordinal) + "\n[tracking]\nstall_minutes = 300\n";
         File.WriteAllText(folder.File("campaign.toml"), edited);
         var profile = Profile + "\ncharge_factor = 1.5\n";
-        File.WriteAllText(Path.Combine(folder.Path, "machines", "box.toml"), profile);
+        File.WriteAllText(Path.Combine(folder.Path, "clusters", "box.toml"), profile);
 
         var written = WorkspaceCreator.Create(folder.Path, Template(), force: true, FixedTime.Default);
 
         Assert.Equal(edited, File.ReadAllText(folder.File("campaign.toml")));
-        Assert.Equal(profile, File.ReadAllText(Path.Combine(folder.Path, "machines", "box.toml")));
+        Assert.Equal(profile, File.ReadAllText(Path.Combine(folder.Path, "clusters", "box.toml")));
         Assert.Equal(Config, File.ReadAllText(folder.File("campaign.toml.new")));
         Assert.Contains(folder.File("campaign.toml.new"), written);
-        Assert.Contains(Path.Combine(folder.Path, "machines", "box.toml.new"), written);
+        Assert.Contains(Path.Combine(folder.Path, "clusters", "box.toml.new"), written);
         using var workspace = Workspace.Open(folder.Path, FixedTime.Default);
         Assert.Equal("Our real campaign", workspace.Config.Name);
-        Assert.Equal(1.5, workspace.Machine("box").ChargeFactor);
+        Assert.Equal(1.5, workspace.Cluster("box").ChargeFactor);
     }
 }

@@ -14,7 +14,7 @@ public sealed record EstimateRequest(string Workspace, string Path, string Shown
 /// <param name="Estimate">Rows per configuration and level, with totals.</param>
 /// <param name="ModelId">The cost model used, or null when every candidate gave its cost.</param>
 /// <param name="Storage">The storage fit used.</param>
-/// <param name="Allocations">Charged core-hours granted per machine.</param>
+/// <param name="Allocations">Charged core-hours granted per cluster.</param>
 /// <param name="Notes">What the user should know about the inputs.</param>
 public sealed record EstimateResult(ProposalEstimate Estimate, long? ModelId, StorageModel Storage, IReadOnlyDictionary<string, double> Allocations, IReadOnlyList<string> Notes);
 
@@ -32,7 +32,7 @@ public sealed class EstimateService
         using var workspace = Workspace.Open(request.Workspace, _time);
         var candidates = CampaignInputs.Candidates(workspace, request.Path, request.Shown);
         var inputs = CampaignInputs.Load(workspace);
-        var estimate = ProposalEstimator.Estimate(candidates, workspace.Machines, inputs.Model?.Model, inputs.Storage, inputs.Length, request.Options);
+        var estimate = ProposalEstimator.Estimate(candidates, workspace.Clusters, inputs.Model?.Model, inputs.Storage, inputs.Length, request.Options);
         return new EstimateResult(estimate, inputs.Model?.Id, inputs.Storage, CampaignInputs.Allocations(workspace), inputs.Notes);
     }
 }

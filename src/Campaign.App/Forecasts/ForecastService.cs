@@ -52,8 +52,8 @@ public sealed class ForecastService
         var (runs, source) = Runs(workspace, snapshot, model);
         var now = _time.GetUtcNow();
         var failure = FailureProbability(logs);
-        var machines = Machines(workspace, snapshot, now);
-        var result = CampaignForecaster.Run(runs, machines, model, now, new ForecastOptions { Replicas = replicas, Seed = seed, LegFailureProbability = failure.Probability }, progress);
+        var clusters = Clusters(workspace, snapshot, now);
+        var result = CampaignForecaster.Run(runs, clusters, model, now, new ForecastOptions { Replicas = replicas, Seed = seed, LegFailureProbability = failure.Probability }, progress);
         return new ForecastOutcome(result, source, runs.Count, failure.Probability, failure.Basis);
     }
 
@@ -65,16 +65,16 @@ public sealed class ForecastService
             throw new InvalidInputException(new[] { $"{workspace.Root}: nothing to forecast: expected a plan ('campaign select FILE --save') or tracked runs" });
         }
 
-        ForecastRun Make(string id, string machine, int cores, BinaryConfiguration c, int level, double length, double done, bool active, double? consumed)
+        ForecastRun Make(string id, string cluster, int cores, BinaryConfiguration c, int level, double length, double done, bool active, double? consumed)
         {
-            var profile = workspace.Machine(machine);
+            var profile = workspace.Cluster(cluster);
             if (model is not null)
             {
                 var observation = CostObservation.For(id, c, level, cores, profile, length);
-                return new ForecastRun(id, machine, cores, model.Features.Row(observation), -Math.Log(profile.RelativeSpeed), null, done, active);
+                return new ForecastRun(id, cluster, cores, model.Features.Row(observation), -Math.Log(profile.RelativeSpeed), null, done, active);
             }
 
-            return new ForecastRun(id, machine, cores, null, 0, consumed ?? throw new InvalidInputException(new[] { $"{id}: no cost model and no planned cost: expected 'campaign model fit'" }), done, active);
+            return new ForecastRun(id, cluster, cores, null, 0, consumed ?? throw new InvalidInputException(new[] { $"{id}: no cost model and no planned cost: expected 'campaign model fit'" }), done, active);
         }
 
         double LengthOf(PlanEntry e) => e.TargetLength ?? SimulatedLength.Estimate(e.Configuration, workspace.Config.Length).Total;
@@ -83,13 +83,13 @@ public sealed class ForecastService
         {
             var e = s.Entry;
             list.Add(s.Run is { } r
-                ? Make(r.RunId, r.Machine, r.Cores, r.Configuration, r.Level, r.TargetLength, r.DoneFraction, r.State is RunState.Queued or RunState.Running, e.Estimate.Median * profileRatio(e.Machine, r.Machine))
-                : Make(e.RunId, e.Machine, e.Cores, e.Configuration, e.Level, LengthOf(e), 0, false, e.Estimate.Median));
+                ? Make(r.RunId, r.Cluster, r.Cores, r.Configuration, r.Level, r.TargetLength, r.DoneFraction, r.State is RunState.Queued or RunState.Running, e.Estimate.Median * profileRatio(e.Cluster, r.Cluster))
+                : Make(e.RunId, e.Cluster, e.Cores, e.Configuration, e.Level, LengthOf(e), 0, false, e.Estimate.Median));
         }
 
         foreach (var r in snapshot.Standing.OutsidePlan.Where(r => r.State.IsActive() || r.State == RunState.Held))
         {
-            list.Add(Make(r.RunId, r.Machine, r.Cores, r.Configuration, r.Level, r.TargetLength, r.DoneFraction, r.State is RunState.Queued or RunState.Running, null));
+            list.Add(Make(r.RunId, r.Cluster, r.Cores, r.Configuration, r.Level, r.TargetLength, r.DoneFraction, r.State is RunState.Queued or RunState.Running, null));
         }
 
         var tracked = list.Count(f => snapshot.Runs.Any(r => r.RunId == f.Id));
@@ -100,7 +100,7 @@ public sealed class ForecastService
             : $"plan {snapshot.Plan.Id.ToString(CultureInfo.InvariantCulture)}: {list.Count} runs left ({tracked} tracked, {list.Count - tracked} to come; {finished} finished{(rehearsals > 0 ? $"; {rehearsals} rehearsal runs not counted" : "")})";
         return (list, source);
 
-        double profileRatio(string planned, string actual) => workspace.Machine(planned).RelativeSpeed / workspace.Machine(actual).RelativeSpeed;
+        double profileRatio(string planned, string actual) => workspace.Cluster(planned).RelativeSpeed / workspace.Cluster(actual).RelativeSpeed;
     }
 
     /// <summary>Share of logged legs that failed: failed and partial runs over all legs logged (0.05 without logs).</summary>
@@ -117,21 +117,21 @@ public sealed class ForecastService
         return (p, $"{failures} failed or partial runs over {legs} logged legs");
     }
 
-    /// <summary>Each machine's queue and its allocation (in force or next), with what the ledger says was spent in it.</summary>
-    internal static IReadOnlyDictionary<string, ForecastMachine> Machines(Workspace workspace, CampaignSnapshot snapshot, DateTimeOffset now)
+    /// <summary>Each cluster's queue and its allocation (in force or next), with what the ledger says was spent in it.</summary>
+    internal static IReadOnlyDictionary<string, ForecastCluster> Clusters(Workspace workspace, CampaignSnapshot snapshot, DateTimeOffset now)
     {
         var today = DateOnly.FromDateTime(now.UtcDateTime);
-        var result = new Dictionary<string, ForecastMachine>(StringComparer.Ordinal);
-        foreach (var profile in workspace.Machines.Values)
+        var result = new Dictionary<string, ForecastCluster>(StringComparer.Ordinal);
+        foreach (var profile in workspace.Clusters.Values)
         {
             var allocation = snapshot.Ledger.CurrentOrNext(profile.Name, today);
             var already = allocation is null ? 0 : snapshot.Ledger.SpentIn(allocation);
             var waits = snapshot.Legs
-                .Where(s => s.Machine == profile.Name && s.StartedAt is not null)
+                .Where(s => s.Cluster == profile.Name && s.StartedAt is not null)
                 .Select(s => (s.StartedAt!.Value - s.SubmittedAt).TotalHours)
                 .Where(h => h >= 0)
                 .ToList();
-            result[profile.Name] = new ForecastMachine(profile, allocation, already, waits);
+            result[profile.Name] = new ForecastCluster(profile, allocation, already, waits);
         }
 
         return result;

@@ -31,7 +31,7 @@ public sealed class RunLogService
     {
         var text = InputFile.Read(request.Path, request.Shown, "a run-log file (CSV)");
         using var workspace = Workspace.Open(request.Workspace, _time);
-        var rows = RunLogReader.Read(text, request.Shown, workspace.Config.Length, workspace.Machines.Keys.ToList());
+        var rows = RunLogReader.Read(text, request.Shown, workspace.Config.Length, workspace.Clusters.Keys.ToList());
         var result = RunLogStore.Import(workspace.Connection, rows, request.Shown, request.Replace, _time);
         return new ImportLogsResult(result.Added, result.Replaced, RunLogStore.All(workspace.Connection).Count);
     }

@@ -23,7 +23,7 @@ public sealed class CostModelService
     public CostModelVersion Fit(string workspaceRoot, CostFitOptions options, IProgress<double>? progress = null)
     {
         using var workspace = Workspace.Open(workspaceRoot, _time);
-        var training = TrainingSet.From(RunLogStore.All(workspace.Connection), workspace.Machines, workspace.Config.Length);
+        var training = TrainingSet.From(RunLogStore.All(workspace.Connection), workspace.Clusters, workspace.Config.Length);
         var model = CostModelFitter.Fit(training.Observations, training.CoreHours, options, training.Skipped, progress);
         var id = CostModelStore.Save(workspace.Connection, model, _time, workspace.Config.Length, StorageModel.Fit(training.Lengths));
         return new CostModelVersion(id, _time.GetUtcNow().ToString("O", CultureInfo.InvariantCulture), model);

@@ -12,7 +12,7 @@ namespace Campaign.App.Plans;
 /// <param name="Path">Candidate file.</param>
 /// <param name="Shown">Its name as the user gave it.</param>
 /// <param name="Objective">Coverage or value.</param>
-/// <param name="Budget">One budget for all machines (charged core-hours, the whole campaign's), or null for the allocations.</param>
+/// <param name="Budget">One budget for all clusters (charged core-hours, the whole campaign's), or null for the allocations.</param>
 /// <param name="Quantile">Cost quantile charged against the budget.</param>
 /// <param name="Exclude">Candidate ids never to choose.</param>
 /// <param name="MaxRuns">Most configurations to choose.</param>
@@ -101,7 +101,7 @@ public sealed class PlanService
             .ToList();
         var carriedIds = carried.Select(c => c.ConfigId).ToHashSet(StringComparer.Ordinal);
         var allocations = CampaignInputs.Allocations(workspace);
-        var reserved = Reserved(snapshot, carried, allocations.Keys, request.Budget is not null, workspace.Machines.Keys);
+        var reserved = Reserved(snapshot, carried, allocations.Keys, request.Budget is not null, workspace.Clusters.Keys);
         var existing = inputs.Logs.Where(l => l.Outcome == RunOutcome.Completed).Select(l => l.Configuration)
             .Concat(snapshot.Standing.EntriesOf(carriedIds).Select(e => e.Configuration))
             .Distinct()
@@ -121,7 +121,7 @@ public sealed class PlanService
             reserved);
         var estimateOptions = new EstimateOptions { EccentricityTrials = request.EccentricityTrials, EccentricityTrialLength = request.EccentricityTrialLength };
         var open = candidates.Where(c => !carriedIds.Contains(c.Id) && !givenUp.Contains(c.Id) && !withdrawn.Contains(c.Id)).ToList();
-        var built = SelectionBuilder.Build(open, workspace.Machines, inputs.Model?.Model, inputs.Storage, inputs.Length, estimateOptions, config.Selection, existing, selection);
+        var built = SelectionBuilder.Build(open, workspace.Clusters, inputs.Model?.Model, inputs.Storage, inputs.Length, estimateOptions, config.Selection, existing, selection);
         built = built with { Dropped = built.Dropped.Concat(candidates.Where(c => givenUp.Contains(c.Id)).Select(c => (c.Id, "given up in this campaign (abandoned)"))).ToList() };
         var result = Selector.Solve(built.Problem, progress);
         var report = SelectionReport.Of(built.Problem, result, request.LeftOut);
@@ -193,19 +193,19 @@ public sealed class PlanService
     }
 
     /// <summary>
-    /// What each budget has already lost: charges so far (within the machine's allocations; all of them for one
+    /// What each budget has already lost: charges so far (within the cluster's allocations; all of them for one
     /// overall budget) plus what the carried configurations still need.
     /// </summary>
-    private static IReadOnlyDictionary<string, double> Reserved(CampaignSnapshot snapshot, IReadOnlyList<CarriedConfiguration> carried, IEnumerable<string> allocated, bool overall, IEnumerable<string> machines)
+    private static IReadOnlyDictionary<string, double> Reserved(CampaignSnapshot snapshot, IReadOnlyList<CarriedConfiguration> carried, IEnumerable<string> allocated, bool overall, IEnumerable<string> clusters)
     {
         var reserved = new Dictionary<string, double>(StringComparer.Ordinal);
-        foreach (var machine in overall ? machines : allocated)
+        foreach (var cluster in overall ? clusters : allocated)
         {
-            var spent = overall ? snapshot.Ledger.SpentAll(machine) : snapshot.Ledger.SpentInAllocations(machine);
-            var need = carried.Where(c => c.Machine == machine).Sum(c => c.RemainingCost);
+            var spent = overall ? snapshot.Ledger.SpentAll(cluster) : snapshot.Ledger.SpentInAllocations(cluster);
+            var need = carried.Where(c => c.Cluster == cluster).Sum(c => c.RemainingCost);
             if (spent + need > 0)
             {
-                reserved[machine] = spent + need;
+                reserved[cluster] = spent + need;
             }
         }
 

@@ -56,13 +56,13 @@ public sealed class ReportService
         var forecast = plan is not null || snapshot.Runs.Any(r => !r.Rehearsal)
             ? new ForecastService(_time).Run(workspace, snapshot, inputs.Logs, model, request.Replicas, 1).Result
             : null;
-        var charges = snapshot.Legs.Where(s => !s.IsOpen && s.EndedAt is not null).Select(s => new ChargePoint(s.Machine, s.EndedAt!.Value, s.Charged ?? 0)).ToList();
+        var charges = snapshot.Legs.Where(s => !s.IsOpen && s.EndedAt is not null).Select(s => new ChargePoint(s.Cluster, s.EndedAt!.Value, s.Charged ?? 0)).ToList();
         var allocations = workspace.Config.Allocations.Select(a => new AllocationLine(
-            a.Machine,
+            a.Cluster,
             new DateTimeOffset(a.Start.ToDateTime(TimeOnly.MinValue), TimeSpan.Zero),
             new DateTimeOffset(a.End.ToDateTime(TimeOnly.MaxValue), TimeSpan.Zero),
-            a.CoreHours(workspace.Machine(a.Machine)),
-            plan?.Entries.Where(e => e.Machine == a.Machine).Sum(e => e.Estimate.ChargedCoreHours) ?? 0)).ToList();
+            a.CoreHours(workspace.Cluster(a.Cluster)),
+            plan?.Entries.Where(e => e.Cluster == a.Cluster).Sum(e => e.Estimate.ChargedCoreHours) ?? 0)).ToList();
         var starts = Store.TrackingStore.Legs(workspace.Connection).ToLookup(s => s.RunId, StringComparer.Ordinal);
         var progress = snapshot.Runs.Select(r =>
         {
@@ -76,7 +76,7 @@ public sealed class ReportService
         var proposal = new List<ProposalRow>();
         if (candidates.Count > 0 && (model is not null || candidates.All(c => c.CoreHours is not null)))
         {
-            var estimate = ProposalEstimator.Estimate(candidates, workspace.Machines, model, inputs.Storage, inputs.Length, new EstimateOptions { Samples = 200 });
+            var estimate = ProposalEstimator.Estimate(candidates, workspace.Clusters, model, inputs.Storage, inputs.Length, new EstimateOptions { Samples = 200 });
             proposal = estimate.Runs.Select(Row).ToList();
         }
         else if (plan is not null)
@@ -112,5 +112,5 @@ public sealed class ReportService
         return data;
     }
 
-    private static ProposalRow Row(EstimateRow r) => new(r.Id + (r.Kind == "ecc" ? " (trials)" : ""), r.Level, r.Machine, r.Median, r.Low, r.High, r.ChargedCoreHours, r.Legs);
+    private static ProposalRow Row(EstimateRow r) => new(r.Id + (r.Kind == "ecc" ? " (trials)" : ""), r.Level, r.Cluster, r.Median, r.Low, r.High, r.ChargedCoreHours, r.Legs);
 }

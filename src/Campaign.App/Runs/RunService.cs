@@ -133,7 +133,7 @@ public sealed class RunService
             var previous = run.State;
             if (batch is not null)
             {
-                Settle(workspace, tx, batch[run.Machine], run);
+                Settle(workspace, tx, batch[run.Cluster], run);
             }
 
             TrackingStore.Save(workspace.Connection, tx, run, to == RunState.Failed ? run.Abandon(at) : run.Release(at));

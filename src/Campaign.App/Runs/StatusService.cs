@@ -37,12 +37,12 @@ public sealed record PlanSummary(long PlanId, int ToCome, int Active, int Held, 
 /// <summary>The whole status.</summary>
 /// <param name="Runs">Every tracked run.</param>
 /// <param name="Plan">The plan's standing, when there is a plan.</param>
-/// <param name="MachineFaults">Machines whose batch system failed in the latest cycles.</param>
+/// <param name="ClusterFaults">Clusters whose batch system failed in the latest cycles.</param>
 /// <param name="LastCycle">When the last reconcile cycle ran (what the states are as of), or null.</param>
 /// <param name="Events">Recent run events, newest last.</param>
-public sealed record StatusResult(IReadOnlyList<RunView> Runs, PlanSummary? Plan, IReadOnlyList<MachineFault> MachineFaults, DateTimeOffset? LastCycle, IReadOnlyList<RunEvent> Events);
+public sealed record StatusResult(IReadOnlyList<RunView> Runs, PlanSummary? Plan, IReadOnlyList<ClusterFault> ClusterFaults, DateTimeOffset? LastCycle, IReadOnlyList<RunEvent> Events);
 
-/// <summary>The campaign's status: runs, plan standing, machines at fault, and how fresh it is.</summary>
+/// <summary>The campaign's status: runs, plan standing, clusters at fault, and how fresh it is.</summary>
 public sealed class StatusService
 {
     private readonly TimeProvider _time;
@@ -75,6 +75,6 @@ public sealed class StatusService
         }
 
         var recent = events > 0 ? TrackingStore.Events(workspace.Connection).TakeLast(events).ToList() : new List<RunEvent>();
-        return new StatusResult(views, plan, MachineFaultStore.All(workspace.Connection), MachineFaultStore.LastCycle(workspace.Connection), recent);
+        return new StatusResult(views, plan, ClusterFaultStore.All(workspace.Connection), ClusterFaultStore.LastCycle(workspace.Connection), recent);
     }
 }

@@ -10,11 +10,11 @@ namespace Campaign.App.Runs;
 
 /// <summary>Start tracking runs of the current plan.</summary>
 /// <param name="Workspace">Workspace folder.</param>
-/// <param name="Machine">Run them on this machine instead of the plan's (for example a workstation).</param>
+/// <param name="Cluster">Run them on this cluster instead of the plan's (for example a workstation).</param>
 /// <param name="Cores">Cores per job instead of the plan's.</param>
 /// <param name="Only">Only these configuration ids (each must be in the plan).</param>
 /// <param name="Rehearsal">A rehearsal: its own runs, which never make a plan run done and never feed the run logs.</param>
-public sealed record TrackRequest(string Workspace, string? Machine, int? Cores, IReadOnlyCollection<string>? Only, bool Rehearsal);
+public sealed record TrackRequest(string Workspace, string? Cluster, int? Cores, IReadOnlyCollection<string>? Only, bool Rehearsal);
 
 /// <summary>What tracking added.</summary>
 /// <param name="PlanId">The plan the runs come from.</param>
@@ -39,9 +39,9 @@ public sealed class TrackService
     {
         using var workspace = Workspace.Open(request.Workspace, _time);
         var problems = new List<string>();
-        if (request.Machine is { } on && !workspace.Machines.ContainsKey(on))
+        if (request.Cluster is { } on && !workspace.Clusters.ContainsKey(on))
         {
-            problems.Add($"--on {on}: expected a machine with a profile: {string.Join(", ", workspace.Machines.Keys)}");
+            problems.Add($"--on {on}: expected a cluster with a profile: {string.Join(", ", workspace.Clusters.Keys)}");
         }
 
         if (request.Cores is < 1)
@@ -90,7 +90,7 @@ public sealed class TrackService
 
             known.Add(id);
             var target = entry.TargetLength ?? SimulatedLength.Estimate(entry.Configuration, workspace.Config.Length).Total;
-            var (run, adopted) = TrackedRun.Adopt(id, entry.ConfigId, entry.Level, request.Machine ?? entry.Machine, request.Cores ?? entry.Cores, Path.Combine(settings.RunsFolder, id), target, entry.Configuration, position++, request.Rehearsal, at);
+            var (run, adopted) = TrackedRun.Adopt(id, entry.ConfigId, entry.Level, request.Cluster ?? entry.Cluster, request.Cores ?? entry.Cores, Path.Combine(settings.RunsFolder, id), target, entry.Configuration, position++, request.Rehearsal, at);
             WriteRunFolder(workspace, run);
             TrackingStore.Add(workspace.Connection, tx, run, adopted);
             added.Add(run);
@@ -128,7 +128,7 @@ public sealed class TrackService
             omega0 = c.Omega0,
             target_length = run.TargetLength,
             end_of_inspiral_x = workspace.Config.Length.EndOfInspiralX,
-            machine = run.Machine,
+            cluster = run.Cluster,
             cores = run.Cores,
         }, new JsonSerializerOptions { WriteIndented = true }));
     }

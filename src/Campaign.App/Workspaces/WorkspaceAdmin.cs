@@ -8,10 +8,10 @@ namespace Campaign.App.Workspaces;
 /// <summary>What <see cref="WorkspaceAdmin.Check"/> found.</summary>
 /// <param name="Root">The workspace folder.</param>
 /// <param name="Config">Its validated settings.</param>
-/// <param name="Machines">Its machine profiles.</param>
+/// <param name="Clusters">Its cluster profiles.</param>
 /// <param name="SchemaVersion">Database schema version.</param>
 /// <param name="Integrity">SQLite's quick check ("ok").</param>
-public sealed record WorkspaceCheck(string Root, WorkspaceConfig Config, IReadOnlyDictionary<string, MachineProfile> Machines, long SchemaVersion, string Integrity);
+public sealed record WorkspaceCheck(string Root, WorkspaceConfig Config, IReadOnlyDictionary<string, ClusterProfile> Clusters, long SchemaVersion, string Integrity);
 
 /// <summary>What a backup wrote.</summary>
 /// <param name="Workspace">The workspace copied.</param>
@@ -33,11 +33,11 @@ public sealed class WorkspaceAdmin
     public static bool Exists(string root) => Workspace.Exists(root);
 
     /// <summary>The validated settings and profiles of a workspace (the database is not opened).</summary>
-    public static (WorkspaceConfig Config, IReadOnlyDictionary<string, MachineProfile> Machines) Settings(string root) => Workspace.ReadSettings(root);
+    public static (WorkspaceConfig Config, IReadOnlyDictionary<string, ClusterProfile> Clusters) Settings(string root) => Workspace.ReadSettings(root);
 
     /// <summary>Creates a workspace from a template; returns the files written.</summary>
-    public IReadOnlyList<string> Create(string root, string configText, IReadOnlyDictionary<string, string> profiles, bool force) =>
-        WorkspaceCreator.Create(root, new WorkspaceTemplate(configText, profiles), force, _time);
+    public IReadOnlyList<string> Create(string root, string configText, IReadOnlyDictionary<string, string> profiles, bool force, IReadOnlyDictionary<string, string>? examples = null) =>
+        WorkspaceCreator.Create(root, new WorkspaceTemplate(configText, profiles, examples), force, _time);
 
     /// <summary>Validates config, profiles and database, and how they fit together.</summary>
     public WorkspaceCheck Check(string root)
@@ -51,20 +51,20 @@ public sealed class WorkspaceAdmin
         using var workspace = Workspace.Open(root, _time);
         var schema = workspace.Connection.ExecuteScalar<long>("PRAGMA user_version");
         var integrity = workspace.Connection.ExecuteScalar<string>("PRAGMA quick_check") ?? "";
-        return new WorkspaceCheck(workspace.Root, workspace.Config, workspace.Machines, schema, integrity);
+        return new WorkspaceCheck(workspace.Root, workspace.Config, workspace.Clusters, schema, integrity);
     }
 
     /// <summary>
-    /// A stall (no progress for stall_minutes while running) can only be seen within a leg: a machine whose
+    /// A stall (no progress for stall_minutes while running) can only be seen within a leg: a cluster whose
     /// leg wall time is not longer than stall_minutes would let a code that never advances run leg after
-    /// leg. Every such machine is named, with the line of stall_minutes in campaign.toml.
+    /// leg. Every such cluster is named, with the line of stall_minutes in campaign.toml.
     /// </summary>
     private static IReadOnlyList<string> StallProblems(string root)
     {
-        var (config, machines) = Workspace.ReadSettings(root);
+        var (config, clusters) = Workspace.ReadSettings(root);
         var stall = config.Tracking.StallMinutes;
-        var tooShort = config.Machines
-            .Select(m => (Machine: m, Wall: config.Tracking.LegMinutes ?? machines[m].WallLimitHours * 60))
+        var tooShort = config.Clusters
+            .Select(m => (Cluster: m, Wall: config.Tracking.LegMinutes ?? clusters[m].WallLimitHours * 60))
             .Where(m => m.Wall <= stall)
             .ToList();
         if (tooShort.Count == 0)
@@ -76,8 +76,8 @@ public sealed class WorkspaceAdmin
         var lines = File.ReadAllLines(path);
         var line = Array.FindIndex(lines, l => l.TrimStart().StartsWith("stall_minutes", StringComparison.Ordinal));
         var where = line < 0 ? $"{path}: [tracking] stall_minutes (default)" : $"{path}:{(line + 1).ToString(CultureInfo.InvariantCulture)}:{(lines[line].IndexOf('s', StringComparison.Ordinal) + 1).ToString(CultureInfo.InvariantCulture)}: stall_minutes";
-        var walls = string.Join(", ", tooShort.Select(m => $"{m.Machine} {m.Wall.ToString("0.###", CultureInfo.InvariantCulture)} min"));
-        return new[] { $"{where} = {stall.ToString("0.###", CultureInfo.InvariantCulture)}: expected less than the leg wall time of every machine ({walls}): a stall could never be seen before the wall-time limit ends the leg" };
+        var walls = string.Join(", ", tooShort.Select(m => $"{m.Cluster} {m.Wall.ToString("0.###", CultureInfo.InvariantCulture)} min"));
+        return new[] { $"{where} = {stall.ToString("0.###", CultureInfo.InvariantCulture)}: expected less than the leg wall time of every cluster ({walls}): a stall could never be seen before the wall-time limit ends the leg" };
     }
 
     /// <summary>A consistent copy of the workspace's database, config and profiles.</summary>

@@ -177,7 +177,7 @@ public sealed class LocalBatchSystem : IBatchSystem
             return new JobStatus(id, JobState.Working, "running (supervisor gone)", ChargedCores: job.Cores, Name: job.Name);
         }
 
-        // Both processes are gone and no exit record was written (the machine rebooted, or the supervisor was
+        // Both processes are gone and no exit record was written (the cluster rebooted, or the supervisor was
         // killed): the runner has lost the job's outcome. Reported as missing, never as a success: the host carries
         // on from the run's newest valid checkpoint.
         return new JobStatus(id, JobState.Vanished, "ended without an exit record", ChargedCores: job.Cores, Name: job.Name);

@@ -14,7 +14,7 @@ public sealed class SlurmBatchSystem : IBatchSystem
     /// <summary>
     /// The controller answered and refused this request (sbatch prints "Batch job submission failed: REASON" for
     /// a job it rejects). Anything else that is not transient (sbatch missing, its configuration unreadable) is
-    /// the machine's fault.
+    /// the cluster's fault.
     /// </summary>
     private static readonly string[] RejectionMarks =
     {

@@ -10,7 +10,7 @@ internal static class BackupCommand
     public static Command Build(CampaignApp app)
     {
         var destination = new Argument<string>("DEST") { Description = "A new (or empty) folder for the copy" };
-        var command = new Command("backup", "Copy the workspace's database (a consistent snapshot, safe while the daemon runs), config and machine profiles") { destination };
+        var command = new Command("backup", "Copy the workspace's database (a consistent snapshot, safe while the daemon runs), config and cluster profiles") { destination };
         app.Bind(command, context =>
         {
             var result = new WorkspaceAdmin(context.Time).Backup(context.Workspace, app.Resolve(context.Parse.GetValue(destination)!));

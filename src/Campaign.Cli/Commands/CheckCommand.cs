@@ -9,7 +9,7 @@ internal static class CheckCommand
 {
     public static Command Build(CampaignApp app)
     {
-        var command = new Command("check", "Validate the workspace (config, machine profiles, database) and summarise it");
+        var command = new Command("check", "Validate the workspace (config, cluster profiles, database) and summarise it");
         app.Bind(command, context =>
         {
             var workspace = new WorkspaceAdmin(context.Time).Check(context.Workspace);
@@ -18,10 +18,10 @@ internal static class CheckCommand
             var integrity = workspace.Integrity;
             var allocations = config.Allocations.Select(a => new
             {
-                a.Machine,
+                a.Cluster,
                 a.Amount,
                 Unit = a.UnitName,
-                CoreHours = a.CoreHours(workspace.Machines[a.Machine]),
+                CoreHours = a.CoreHours(workspace.Clusters[a.Cluster]),
                 Start = a.Start.ToString("yyyy-MM-dd", System.Globalization.CultureInfo.InvariantCulture),
                 End = a.End.ToString("yyyy-MM-dd", System.Globalization.CultureInfo.InvariantCulture),
                 Windows = a.Windows.Select(w => new
@@ -37,22 +37,28 @@ internal static class CheckCommand
                 {
                     Workspace = workspace.Root,
                     config.Name,
-                    config.Machines,
-                    config.DefaultMachine,
+                    config.Clusters,
+                    config.DefaultCluster,
                     Allocations = allocations,
                     DefaultLevels = config.Defaults.Levels,
                     DefaultCores = config.Defaults.Cores,
                     SchemaVersion = schema,
                     Integrity = integrity,
+                    config.Notices,
                 });
                 return ExitCodes.Ok;
             }
 
             context.Out.WriteLine($"Workspace {workspace.Root}: ok");
             context.Out.WriteLine($"  campaign        {config.Name}");
-            context.Out.WriteLine($"  machines        {string.Join(", ", config.Machines)} (default {config.DefaultMachine})");
+            context.Out.WriteLine($"  clusters        {string.Join(", ", config.Clusters)} (default {config.DefaultCluster})");
             context.Out.WriteLine($"  default levels  {string.Join(", ", config.Defaults.Levels)}; cores {(config.Defaults.Cores is { } c ? Format.Integer(c) : "(per candidate)")}");
             context.Out.WriteLine($"  database        schema version {schema}, integrity {integrity}");
+            foreach (var notice in config.Notices)
+            {
+                context.Out.WriteLine($"  note: {notice}");
+            }
+
             if (allocations.Count == 0)
             {
                 context.Out.WriteLine("  allocations     none configured");
@@ -60,10 +66,10 @@ internal static class CheckCommand
             }
 
             context.Out.WriteLine();
-            var table = new TextTable("machine", "period", "amount", "unit", "core-hours", "windows");
+            var table = new TextTable("cluster", "period", "amount", "unit", "core-hours", "windows");
             foreach (var a in allocations)
             {
-                table.Add(a.Machine, a.Start + " .. " + a.End, Format.Grouped(a.Amount), a.Unit, Format.Grouped(a.CoreHours), Format.Integer(a.Windows.Count));
+                table.Add(a.Cluster, a.Start + " .. " + a.End, Format.Grouped(a.Amount), a.Unit, Format.Grouped(a.CoreHours), Format.Integer(a.Windows.Count));
             }
 
             table.WriteTo(context.Out);

@@ -18,7 +18,7 @@ using Campaign.Core.Selection;
 namespace Campaign.Cli.Commands;
 
 /// <summary>
-/// campaign demo [DIR]: the quick start. Creates a workspace of the invented demo group (config, machine
+/// campaign demo [DIR]: the quick start. Creates a workspace of the invented demo group (config, cluster
 /// profiles, run logs, candidate configurations) and runs the whole job that exists so far on it: run lengths,
 /// log import, cost-model fit, the proposal estimate and the selection saved as the plan. Later steps of the
 /// demo grow here as the tool grows.
@@ -120,13 +120,13 @@ internal static class DemoCommand
 
             var o = context.Json ? TextWriter.Null : context.Out;
             o.WriteLine($"Demo workspace: {target}");
-            o.WriteLine("  an invented group's config, machine profiles, past runs (run-logs.csv) and planned runs (candidates.csv)");
+            o.WriteLine("  an invented group's config, cluster profiles, past runs (run-logs.csv) and planned runs (candidates.csv)");
             o.WriteLine();
 
-            var (config, machines) = WorkspaceAdmin.Settings(target);
+            var (config, clusters) = WorkspaceAdmin.Settings(target);
             var time = context.Time;
             o.WriteLine("== 1. How long must each planned run be? (post-Newtonian inspiral + merger + ringdown)");
-            var lengths = LengthCommand.ForFile(candidatesPath, "candidates.csv", config.Length, config.Defaults, config.DefaultMachine, machines.Keys.ToList());
+            var lengths = LengthCommand.ForFile(candidatesPath, "candidates.csv", config.Length, config.Defaults, config.DefaultCluster, clusters.Keys.ToList());
             LengthCommand.Write(Step("lengths"), lengths, config.Length);
             Show("lengths", 10, l => l.StartsWith("Lengths", StringComparison.Ordinal) || !l.StartsWith("sm-", StringComparison.Ordinal));
             o.WriteLine();

@@ -68,7 +68,7 @@ internal static class EstimateCommand
                 StorageFromLogs = new { Checkpoint = storage.CheckpointFitted, Output = storage.OutputFitted },
                 estimate.Runs,
                 estimate.Total,
-                estimate.ByMachine,
+                estimate.ByCluster,
                 Allocations = allocations,
                 result.Notes,
                 Caution,
@@ -92,12 +92,12 @@ internal static class EstimateCommand
 
     private static readonly string[] Header =
     {
-        "id", "level", "kind", "machine", "cores", "T/M", "median core-h", "low", "high", "wall h", "legs", "node-h", "charged core-h", "checkpoint GB", "output GB", "flags",
+        "id", "level", "kind", "cluster", "cores", "T/M", "median core-h", "low", "high", "wall h", "legs", "node-h", "charged core-h", "checkpoint GB", "output GB", "flags",
     };
 
     private static string[] Cells(EstimateRow r) => new[]
     {
-        r.Id, Format.Integer(r.Level), r.Kind, r.Machine, Format.Integer(r.Cores), Format.Fixed(r.LengthM, 0), Format.Fixed(r.Median, 0), Format.Fixed(r.Low, 0),
+        r.Id, Format.Integer(r.Level), r.Kind, r.Cluster, Format.Integer(r.Cores), Format.Fixed(r.LengthM, 0), Format.Fixed(r.Median, 0), Format.Fixed(r.Low, 0),
         Format.Fixed(r.High, 0), Format.Fixed(r.WallHours, 1), Format.Integer(r.Legs), Format.Fixed(r.NodeHours, 0), Format.Fixed(r.ChargedCoreHours, 0),
         Format.Fixed(r.CheckpointGb, 1), Format.Fixed(r.OutputGb, 1), Flags(r),
     };
@@ -116,7 +116,7 @@ internal static class EstimateCommand
         WriteNotes(o, e, modelId, storage);
         o.WriteLine();
         var totals = new TextTable("total", "median core-h", $"{Pct(e.Interval)} interval", "mean", "charged median", "charged interval", "allocation core-h", "median / allocation");
-        foreach (var (name, t) in e.ByMachine.Append(new KeyValuePair<string, EstimateTotal>("ALL", e.Total)))
+        foreach (var (name, t) in e.ByCluster.Append(new KeyValuePair<string, EstimateTotal>("ALL", e.Total)))
         {
             var allocation = name == "ALL" ? allocations.Values.Sum() : allocations.GetValueOrDefault(name);
             totals.Add(name, Format.Fixed(t.Median, 0), $"{Format.Fixed(t.Low, 0)} .. {Format.Fixed(t.High, 0)}", Format.Fixed(t.Mean, 0), Format.Fixed(t.ChargedMedian, 0),
@@ -155,7 +155,7 @@ internal static class EstimateCommand
         o.WriteLine();
         o.WriteLine($"| total | median core-h | {Pct(e.Interval)} interval | charged median | charged interval | allocation core-h |");
         o.WriteLine("|---|---|---|---|---|---|");
-        foreach (var (name, t) in e.ByMachine.Append(new KeyValuePair<string, EstimateTotal>("ALL", e.Total)))
+        foreach (var (name, t) in e.ByCluster.Append(new KeyValuePair<string, EstimateTotal>("ALL", e.Total)))
         {
             var allocation = name == "ALL" ? allocations.Values.Sum() : allocations.GetValueOrDefault(name);
             o.WriteLine($"| {name} | {Format.Fixed(t.Median, 0)} | {Format.Fixed(t.Low, 0)} .. {Format.Fixed(t.High, 0)} | {Format.Fixed(t.ChargedMedian, 0)} | {Format.Fixed(t.ChargedLow, 0)} .. {Format.Fixed(t.ChargedHigh, 0)} | {(allocation > 0 ? Format.Fixed(allocation, 0) : "-")} |");

@@ -61,10 +61,10 @@ internal static class ForecastCommand
         o.WriteLine();
         if (result.Windows.Count > 0)
         {
-            var windows = new TextTable("machine", "window", "granted core-h", "mean charge", "P10 .. P90", "P(over)", "P(>10% unused)");
+            var windows = new TextTable("cluster", "window", "granted core-h", "mean charge", "P10 .. P90", "P(over)", "P(>10% unused)");
             foreach (var w in result.Windows)
             {
-                windows.Add(w.Machine, $"{w.Start:yyyy-MM-dd}..{w.End:yyyy-MM-dd}", Format.Fixed(w.Amount, 0), Format.Fixed(w.MeanCharge, 0), $"{Format.Fixed(w.P10, 0)} .. {Format.Fixed(w.P90, 0)}",
+                windows.Add(w.Cluster, $"{w.Start:yyyy-MM-dd}..{w.End:yyyy-MM-dd}", Format.Fixed(w.Amount, 0), Format.Fixed(w.MeanCharge, 0), $"{Format.Fixed(w.P10, 0)} .. {Format.Fixed(w.P90, 0)}",
                     Format.Fixed(w.ProbabilityOver, 2), Format.Fixed(w.ProbabilityUnused, 2));
             }
 
@@ -79,10 +79,10 @@ internal static class ForecastCommand
             o.WriteLine();
         }
 
-        var table = new TextTable("run", "machine", "finish P10", "P50", "P90", "P(late)", "legs left");
+        var table = new TextTable("run", "cluster", "finish P10", "P50", "P90", "P(late)", "legs left");
         foreach (var r in result.Runs.OrderByDescending(r => r.Finish.P90 ?? DateTimeOffset.MaxValue).Take(shown))
         {
-            table.Add(r.Id, r.Machine, Date(r.Finish.P10), Date(r.Finish.P50), Date(r.Finish.P90), Format.Fixed(r.ProbabilityLate, 2), Format.Fixed(r.MeanLegs, 1));
+            table.Add(r.Id, r.Cluster, Date(r.Finish.P10), Date(r.Finish.P50), Date(r.Finish.P90), Format.Fixed(r.ProbabilityLate, 2), Format.Fixed(r.MeanLegs, 1));
         }
 
         table.WriteTo(o);

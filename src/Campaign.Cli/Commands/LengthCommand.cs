@@ -39,7 +39,7 @@ internal static class LengthCommand
                     throw new UsageException("--candidates reads every configuration from the file: give it without --q, --chi*, --omega0 or --orbits");
                 }
 
-                var rows = ForFile(app.Resolve(file), file, settings.Length, settings.Defaults, settings.DefaultMachine, settings.Machines);
+                var rows = ForFile(app.Resolve(file), file, settings.Length, settings.Defaults, settings.DefaultCluster, settings.Clusters);
                 Write(context, rows, settings.Length);
                 return ExitCodes.Ok;
             }
@@ -84,8 +84,8 @@ internal static class LengthCommand
     }
 
     /// <summary>Lengths for every row of a candidate file.</summary>
-    internal static IReadOnlyList<LengthRow> ForFile(string path, string shownName, LengthSettings length, RunDefaults defaults, string defaultMachine, IReadOnlyCollection<string> machines) =>
-        CandidateFile.Read(path, shownName, length, defaults, defaultMachine, machines).Select(c => LengthRow.From(c.Id, c.Configuration, length)).ToList();
+    internal static IReadOnlyList<LengthRow> ForFile(string path, string shownName, LengthSettings length, RunDefaults defaults, string defaultCluster, IReadOnlyCollection<string> clusters) =>
+        CandidateFile.Read(path, shownName, length, defaults, defaultCluster, clusters).Select(c => LengthRow.From(c.Id, c.Configuration, length)).ToList();
 
     internal static void Write(CommandContext context, IReadOnlyList<LengthRow> rows, LengthSettings settings)
     {
@@ -99,15 +99,15 @@ internal static class LengthCommand
         }
     }
 
-    private sealed record LengthInputs(LengthSettings Length, RunDefaults Defaults, string DefaultMachine, IReadOnlyCollection<string> Machines);
+    private sealed record LengthInputs(LengthSettings Length, RunDefaults Defaults, string DefaultCluster, IReadOnlyCollection<string> Clusters);
 
     /// <summary>The workspace's settings when --dir is a workspace, else the built-in defaults and profiles.</summary>
     private static LengthInputs Settings(CommandContext context)
     {
         if (WorkspaceAdmin.Exists(context.Workspace))
         {
-            var (config, machines) = WorkspaceAdmin.Settings(context.Workspace);
-            return new LengthInputs(config.Length, config.Defaults, config.DefaultMachine, machines.Keys.ToList());
+            var (config, clusters) = WorkspaceAdmin.Settings(context.Workspace);
+            return new LengthInputs(config.Length, config.Defaults, config.DefaultCluster, clusters.Keys.ToList());
         }
 
         var builtIn = EmbeddedFiles.Under("profiles/").Keys.Select(Path.GetFileNameWithoutExtension).OfType<string>().ToList();

@@ -50,7 +50,7 @@ internal static class LogsCommand
                         l.Configuration.Omega0,
                         l.Level,
                         l.Cores,
-                        l.Machine,
+                        l.Cluster,
                         l.WallHours,
                         CoreHours = l.ConsumedCoreHours,
                         ChargedCoreHours = l.CoreHours,
@@ -61,11 +61,11 @@ internal static class LogsCommand
                 return ExitCodes.Ok;
             }
 
-            var table = new TextTable("run_id", "q", "chi_eff", "M*omega0", "level", "cores", "machine", "wall h", "core-h", "outcome");
+            var table = new TextTable("run_id", "q", "chi_eff", "M*omega0", "level", "cores", "cluster", "wall h", "core-h", "outcome");
             foreach (var l in logs)
             {
                 table.Add(l.RunId, Format.Significant(l.Configuration.Q.Value), Format.Fixed(l.Configuration.ChiEffective, 3), Format.Fixed(l.Configuration.Omega0, 4),
-                    Format.Integer(l.Level), Format.Integer(l.Cores), l.Machine, Format.Fixed(l.WallHours, 1), Format.Grouped(l.ConsumedCoreHours), l.Outcome.ToString().ToLowerInvariant());
+                    Format.Integer(l.Level), Format.Integer(l.Cores), l.Cluster, Format.Fixed(l.WallHours, 1), Format.Grouped(l.ConsumedCoreHours), l.Outcome.ToString().ToLowerInvariant());
             }
 
             table.WriteTo(context.Out);

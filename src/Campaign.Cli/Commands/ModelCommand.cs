@@ -71,13 +71,13 @@ internal static class ModelCommand
                 model.Candidates,
                 model.Influential,
                 model.DownWeighted,
-                model.Machines,
+                model.Clusters,
             });
             return;
         }
 
         var o = context.Out;
-        o.WriteLine($"Cost model {id} ({fittedAt}): ln(core-hours x machine speed) fitted on {model.RunCount} runs ({model.RunsSkipped} skipped: failed, or partial without t_end).");
+        o.WriteLine($"Cost model {id} ({fittedAt}): ln(core-hours x cluster speed) fitted on {model.RunCount} runs ({model.RunsSkipped} skipped: failed, or partial without t_end).");
         o.WriteLine($"Fit: {(model.Robust ? "Huber robust regression (IRLS)" : "least squares (QR)")}{(model.UsedPrior ? "; FEW LOGS: blended with prior exponents (see docs/cost-model.md), intervals are wider" : "")}.");
         o.WriteLine($"Chosen feature set: {model.FeatureSet} (simplest within one standard error of the best {model.Folds}-fold CV error).");
         o.WriteLine();
@@ -120,6 +120,6 @@ internal static class ModelCommand
         "level" => $"x{Format.Fixed(Math.Exp(b), 2)} per resolution level",
         "ln_cores" => $"core-hours ~ cores^{Format.Fixed(b, 2)} (parallel efficiency)",
         "intercept" => "",
-        _ => $"x{Format.Fixed(Math.Exp(b), 2)} on this machine beyond its profile speed",
+        _ => $"x{Format.Fixed(Math.Exp(b), 2)} on this cluster beyond its profile speed",
     };
 }

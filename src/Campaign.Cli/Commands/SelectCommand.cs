@@ -13,7 +13,7 @@ internal static class SelectCommand
         var file = new Argument<string>("FILE") { Description = "Candidate file (CSV; the same as for estimate)" };
         var objective = new Option<string>("--objective") { Description = "coverage (default): cover the parameter space; value: maximise the sum of the value column", DefaultValueFactory = _ => "coverage" };
         Choices.Restrict(objective, "coverage", "value");
-        var budget = new Option<double?>("--budget") { Description = "One budget in charged core-hours for all machines (default: the allocations in campaign.toml, one per machine)", HelpName = "CORE_HOURS" };
+        var budget = new Option<double?>("--budget") { Description = "One budget in charged core-hours for all clusters (default: the allocations in campaign.toml, one per cluster)", HelpName = "CORE_HOURS" };
         var quantile = new Option<double>("--quantile") { Description = "Cost quantile charged against the budget (default 0.5; 0.8 or 0.9 for a risk-averse plan)", DefaultValueFactory = _ => 0.5 };
         var exclude = new Option<string[]>("--exclude") { Description = "Candidate ids never to choose (repeat, or separate with commas)", AllowMultipleArgumentsPerToken = true, HelpName = "ID" };
         var maxRuns = new Option<int?>("--max-runs") { Description = "Most configurations to choose", HelpName = "N" };
@@ -67,7 +67,7 @@ internal static class SelectCommand
             {
                 Objective = kind.ToString().ToLowerInvariant(),
                 Selected = report.Chosen.Select(c => c.Id),
-                Assignment = report.Chosen.ToDictionary(c => c.Id, c => c.Machine),
+                Assignment = report.Chosen.ToDictionary(c => c.Id, c => c.Cluster),
                 Cost = totalCost,
                 CostMedian = report.Chosen.Sum(c => c.Median),
                 CostHigh = report.Chosen.Sum(c => c.High),
@@ -81,10 +81,10 @@ internal static class SelectCommand
                 ExistingRuns = existing,
                 Pools = report.Pools.Select(p => new { p.Name, p.Capacity, p.Used, p.Left, p.UsedMedian, p.UsedHigh }),
                 Runs = report.Chosen,
-                LeftOut = report.LeftOut.Select(l => new { l.Id, l.Machine, l.Cost, l.Gain, CostPerGain = double.IsInfinity(l.CostPerGain) ? (double?)null : l.CostPerGain, l.Reason }),
+                LeftOut = report.LeftOut.Select(l => new { l.Id, l.Cluster, l.Cost, l.Gain, CostPerGain = double.IsInfinity(l.CostPerGain) ? (double?)null : l.CostPerGain, l.Reason }),
                 Dropped = built.Dropped.Select(d => new { d.Id, d.Reason }),
                 PlanId = planId,
-                CarriedOver = selected.Carried.Select(c => new { c.ConfigId, c.Machine, c.RemainingCost, c.Why }),
+                CarriedOver = selected.Carried.Select(c => new { c.ConfigId, c.Cluster, c.RemainingCost, c.Why }),
                 Withdrawn = selected.Withdrawn ?? Array.Empty<string>(),
                 Reserved = selected.Reserved,
             });
@@ -96,11 +96,11 @@ internal static class SelectCommand
             ? $"coverage of the {built.Problem.Candidates.Count} candidates (with {existing} configurations already covered: completed runs and started ones)"
             : "the sum of the value column";
         o.WriteLine($"Selection maximising {what}; costs are charged core-hours at the {Format.Fixed(request.Quantile * 100, 0)}th percentile of each configuration (all its levels).");
-        var table = new TextTable("#", "id", "machine", "cost", "median", "high", "value", kind == SelectionObjective.Coverage ? "coverage gain" : "gain", "");
+        var table = new TextTable("#", "id", "cluster", "cost", "median", "high", "value", kind == SelectionObjective.Coverage ? "coverage gain" : "gain", "");
         var k = 0;
         foreach (var c in report.Chosen)
         {
-            table.Add(Format.Integer(++k), c.Id, c.Machine, Format.Fixed(c.Cost, 0), Format.Fixed(c.Median, 0), Format.Fixed(c.High, 0), Format.Significant(c.Value, 3), Format.Fixed(c.Gain, 4), c.Must ? "must" : "");
+            table.Add(Format.Integer(++k), c.Id, c.Cluster, Format.Fixed(c.Cost, 0), Format.Fixed(c.Median, 0), Format.Fixed(c.High, 0), Format.Significant(c.Value, 3), Format.Fixed(c.Gain, 4), c.Must ? "must" : "");
         }
 
         table.WriteTo(o);
@@ -119,10 +119,10 @@ internal static class SelectCommand
         {
             o.WriteLine();
             o.WriteLine("Best candidates left out:");
-            var left = new TextTable("id", "machine", "cost", "gain", "cost per unit gain", "why");
+            var left = new TextTable("id", "cluster", "cost", "gain", "cost per unit gain", "why");
             foreach (var l in report.LeftOut)
             {
-                left.Add(l.Id, l.Machine, Format.Fixed(l.Cost, 0), Format.Fixed(l.Gain, 4), double.IsInfinity(l.CostPerGain) ? "-" : Format.Fixed(l.CostPerGain, 0), l.Reason);
+                left.Add(l.Id, l.Cluster, Format.Fixed(l.Cost, 0), Format.Fixed(l.Gain, 4), double.IsInfinity(l.CostPerGain) ? "-" : Format.Fixed(l.CostPerGain, 0), l.Reason);
             }
 
             left.WriteTo(o);
@@ -137,10 +137,10 @@ internal static class SelectCommand
         {
             o.WriteLine();
             o.WriteLine($"Kept because they have started ({selected.Carried.Count}; not chosen again, their remaining cost taken off the budget first):");
-            var kept = new TextTable("id", "machine", "still needs core-h", "runs");
+            var kept = new TextTable("id", "cluster", "still needs core-h", "runs");
             foreach (var c in selected.Carried)
             {
-                kept.Add(c.ConfigId, c.Machine, Format.Fixed(c.RemainingCost, 0), c.Why);
+                kept.Add(c.ConfigId, c.Cluster, Format.Fixed(c.RemainingCost, 0), c.Why);
             }
 
             kept.WriteTo(o);

@@ -39,7 +39,7 @@ internal static class TrackingCommands
 
     private static Command Track(CampaignApp app)
     {
-        var on = new Option<string?>("--on") { Description = "Run every configuration on this machine instead of the plan's assignment (e.g. a workstation)", HelpName = "MACHINE" };
+        var on = new Option<string?>("--on") { Description = "Run every configuration on this cluster instead of the plan's assignment (e.g. a workstation)", HelpName = "CLUSTER" };
         var cores = new Option<int?>("--cores") { Description = "Cores per job instead of the plan's", HelpName = "N" };
         var only = new Option<string[]>("--only") { Description = "Only these configuration ids of the plan (repeat, or separate with commas)", AllowMultipleArgumentsPerToken = true, HelpName = "ID" };
         var rehearsal = new Option<bool>("--rehearsal") { Description = "A rehearsal: runs of their own (ids end .r1, .r2 ...) that never count as plan runs done and never feed the run logs" };
@@ -59,7 +59,7 @@ internal static class TrackingCommands
     {
         if (context.Json)
         {
-            Json.Write(context.Out, new { result.PlanId, Added = result.Added.Select(r => new { r.RunId, r.Machine, r.Cores, r.TargetLength, r.Rehearsal }), result.AlreadyTracked });
+            Json.Write(context.Out, new { result.PlanId, Added = result.Added.Select(r => new { r.RunId, r.Cluster, r.Cores, r.TargetLength, r.Rehearsal }), result.AlreadyTracked });
             return;
         }
 
@@ -67,7 +67,7 @@ internal static class TrackingCommands
         context.Out.WriteLine($"Tracking {result.Added.Count} {kind} from plan {result.PlanId}{(result.AlreadyTracked.Count > 0 ? $" ({result.AlreadyTracked.Count} already tracked)" : "")}.");
         foreach (var run in result.Added)
         {
-            context.Out.WriteLine($"  {run.RunId} on {run.Machine}, {run.Cores} cores, target {Format.Fixed(run.TargetLength, 0)} M");
+            context.Out.WriteLine($"  {run.RunId} on {run.Cluster}, {run.Cores} cores, target {Format.Fixed(run.TargetLength, 0)} M");
         }
 
         context.Out.WriteLine("Next: campaign tick (one cycle, e.g. from cron) or campaign watch (a daemon).");
@@ -119,7 +119,7 @@ internal static class TrackingCommands
     private static Command Status(CampaignApp app)
     {
         var events = new Option<int>("--events") { Description = "Show this many recent run events too (default 0)" };
-        var command = new Command("status", "Runs with their state, progress, legs, charge and predicted finish; the plan's standing and machines at fault") { events };
+        var command = new Command("status", "Runs with their state, progress, legs, charge and predicted finish; the plan's standing and clusters at fault") { events };
         app.Bind(command, context =>
         {
             var count = context.Parse.GetValue(events);
@@ -191,13 +191,13 @@ internal static class TrackingCommands
             {
                 LastCycle = status.LastCycle?.ToString("O", CultureInfo.InvariantCulture),
                 Plan = status.Plan,
-                MachineFaults = status.MachineFaults.Select(f => new { f.Machine, Since = f.Since.ToString("O", CultureInfo.InvariantCulture), LastAt = f.LastAt.ToString("O", CultureInfo.InvariantCulture), f.Message }),
+                ClusterFaults = status.ClusterFaults.Select(f => new { f.Cluster, Since = f.Since.ToString("O", CultureInfo.InvariantCulture), LastAt = f.LastAt.ToString("O", CultureInfo.InvariantCulture), f.Message }),
                 Runs = status.Runs.Select(v => new
                 {
                     Id = v.Run.RunId,
                     State = v.Run.State.Name(),
                     v.Run.Reason,
-                    v.Run.Machine,
+                    v.Run.Cluster,
                     v.Run.Cores,
                     v.Run.Rehearsal,
                     Progress = v.Run.Progress,
@@ -216,9 +216,9 @@ internal static class TrackingCommands
         o.WriteLine(status.LastCycle is { } last
             ? $"As of the last cycle at {last.ToString("yyyy-MM-dd HH:mm:ss", CultureInfo.InvariantCulture)} UTC ({Ago(now - last)} ago)."
             : "No cycle has run yet: states are as recorded, not yet checked with any batch system ('campaign tick' or 'campaign watch').");
-        foreach (var f in status.MachineFaults)
+        foreach (var f in status.ClusterFaults)
         {
-            o.WriteLine($"Machine {f.Machine} unreachable since {f.Since.ToString("yyyy-MM-dd HH:mm", CultureInfo.InvariantCulture)} UTC (last tried {Ago(now - f.LastAt)} ago): {f.Message}. Its runs are left as they were.");
+            o.WriteLine($"Cluster {f.Cluster} unreachable since {f.Since.ToString("yyyy-MM-dd HH:mm", CultureInfo.InvariantCulture)} UTC (last tried {Ago(now - f.LastAt)} ago): {f.Message}. Its runs are left as they were.");
         }
 
         if (status.Plan is { } p)
@@ -233,7 +233,7 @@ internal static class TrackingCommands
         }
 
         o.WriteLine();
-        var table = new TextTable("run", "state", "machine", "progress", "t / target M", "legs", "job", "charged core-h", "M per hour", "predicted finish", "reason");
+        var table = new TextTable("run", "state", "cluster", "progress", "t / target M", "legs", "job", "charged core-h", "M per hour", "predicted finish", "reason");
         foreach (var v in status.Runs)
         {
             var r = v.Run;
@@ -243,7 +243,7 @@ internal static class TrackingCommands
             table.Add(
                 r.RunId,
                 r.State.Name(),
-                r.Machine,
+                r.Cluster,
                 bar,
                 Format.Fixed(r.Progress, 0) + " / " + Format.Fixed(r.TargetLength, 0),
                 Format.Integer(v.Legs.Count),

@@ -7,7 +7,7 @@ namespace Campaign.Core.Configuration;
 
 /// <summary>
 /// Reads a candidate file (CSV): id, q, chi1x..chi2z (x and y may be omitted), omega0 or orbits, levels
-/// ("2;3;4"), cores, cluster (one machine, or several separated by ';' that the configuration may run on),
+/// ("2;3;4"), cores, cluster (one cluster, or several separated by ';' that the configuration may run on),
 /// and optional value, must, core_hours. Missing levels, cores and cluster come
 /// from the workspace defaults. Every problem in every row is reported as "file:line:column: ..." and
 /// nothing is returned unless the whole file is valid.
@@ -37,7 +37,7 @@ public static partial class CandidateReader
     private static partial System.Text.RegularExpressions.Regex IdPattern();
 
     /// <summary>Parses and validates the file text.</summary>
-    public static IReadOnlyList<Candidate> Read(string text, string source, LengthSettings settings, RunDefaults defaults, string defaultMachine, IReadOnlyCollection<string> knownMachines)
+    public static IReadOnlyList<Candidate> Read(string text, string source, LengthSettings settings, RunDefaults defaults, string defaultCluster, IReadOnlyCollection<string> knownClusters)
     {
         var table = RowCells.Parse(text, source);
 
@@ -88,15 +88,15 @@ public static partial class CandidateReader
             draft.Cores = cells.Integer("cores") ?? defaults.Cores;
             var levels = cells.Levels("levels");
             draft.Levels.AddRange(levels ?? defaults.Levels.Select(l => (long)l));
-            var machines = (cells.Text("cluster") ?? "").Split(';', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries).Distinct().ToList();
-            if (machines.Count == 0)
+            var clusters = (cells.Text("cluster") ?? "").Split(';', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries).Distinct().ToList();
+            if (clusters.Count == 0)
             {
-                machines.Add(defaultMachine);
+                clusters.Add(defaultCluster);
             }
 
-            foreach (var unknown in machines.Where(m => !knownMachines.Contains(m)))
+            foreach (var unknown in clusters.Where(m => !knownClusters.Contains(m)))
             {
-                cells.Problem("cluster", cells.Text("cluster") ?? "", $"machines with a profile, separated by ';': {string.Join(", ", knownMachines.Order(StringComparer.Ordinal))} (\"{unknown}\" has none)");
+                cells.Problem("cluster", cells.Text("cluster") ?? "", $"clusters with a profile, separated by ';': {string.Join(", ", knownClusters.Order(StringComparer.Ordinal))} (\"{unknown}\" has none)");
             }
 
             var value = cells.Number("value") ?? 1.0;
@@ -131,7 +131,7 @@ public static partial class CandidateReader
                     continue;
                 }
 
-                candidates.Add(new Candidate(id!, spec, machines[0], value, must, coreHours, machines));
+                candidates.Add(new Candidate(id!, spec, clusters[0], value, must, coreHours, clusters));
             }
             catch (InvalidInputException e)
             {

@@ -17,8 +17,8 @@ public static class RunLogReader
     /// <summary>Columns every run-log file must have.</summary>
     public static readonly string[] Required = { "run_id", "q", "chi1z", "chi2z", "omega0", "level", "cores", "cluster", "wall_hours", "outcome" };
 
-    /// <summary>Parses and validates the file text against the known machines.</summary>
-    public static IReadOnlyList<RunLogRow> Read(string text, string source, LengthSettings settings, IReadOnlyCollection<string> knownMachines)
+    /// <summary>Parses and validates the file text against the known clusters.</summary>
+    public static IReadOnlyList<RunLogRow> Read(string text, string source, LengthSettings settings, IReadOnlyCollection<string> knownClusters)
     {
         var table = RowCells.Parse(text, source);
 
@@ -37,7 +37,7 @@ public static class RunLogReader
         var logs = new List<RunLogRow>();
         var extraColumns = table.Header.Where(c => !KnownColumns.Contains(c)).ToList();
         var ids = new Dictionary<string, int>(StringComparer.Ordinal);
-        var known = string.Join(", ", knownMachines.Order(StringComparer.Ordinal));
+        var known = string.Join(", ", knownClusters.Order(StringComparer.Ordinal));
         foreach (var row in table.Rows)
         {
             var cells = new RowCells(table, row, problems);
@@ -65,10 +65,10 @@ public static class RunLogReader
 
             var level = Bounded(cells, "level", cells.Integer("level"), 0, RunSpec.MaximumLevel, required: true);
             var cores = Bounded(cells, "cores", cells.Integer("cores"), 1, RunSpec.MaximumCores, required: true);
-            var machine = cells.Text("cluster") ?? "";
-            if (!knownMachines.Contains(machine))
+            var cluster = cells.Text("cluster") ?? "";
+            if (!knownClusters.Contains(cluster))
             {
-                cells.Problem("cluster", machine, $"a machine with a profile: {known}");
+                cells.Problem("cluster", cluster, $"a cluster with a profile: {known}");
             }
 
             var wall = Positive(cells, "wall_hours", 1e7, required: true);
@@ -97,7 +97,7 @@ public static class RunLogReader
                 continue;
             }
 
-            var log = new RunLog(id, draft.BuildConfiguration(settings), (int)level!.Value, (int)cores!.Value, machine, wall!.Value, outcome!.Value,
+            var log = new RunLog(id, draft.BuildConfiguration(settings), (int)level!.Value, (int)cores!.Value, cluster, wall!.Value, outcome!.Value,
                 coreHours, tEnd, orbits, legs is null ? null : (int)legs.Value, checkpoint, output, started, finished);
             logs.Add(new RunLogRow(row.Line, log, extraColumns.ToDictionary(c => c, c => cells.Text(c) ?? "")));
         }

@@ -252,6 +252,19 @@ public sealed class TomlFields
         }
     }
 
+    /// <summary>
+    /// Reads a field written under its former name (<paramref name="former"/>, from workspaces made before the
+    /// current names) as <paramref name="current"/>, and says so in <paramref name="notices"/>: "file:line:column:
+    /// 'machines' is the former name of 'clusters'; read as that (rename it)".
+    /// </summary>
+    public void Former(string former, string current, List<string> notices)
+    {
+        if (_table.TryGet(former, out var value) && _table.Rename(former, current))
+        {
+            notices.Add($"{_source}:{value.Line.ToString(CultureInfo.InvariantCulture)}:{value.Column.ToString(CultureInfo.InvariantCulture)}: '{_table.NameOf(former)}' is the former name of '{_table.NameOf(current)}'; read as that (rename it)");
+        }
+    }
+
     /// <summary>Reports every key not in <paramref name="known"/> (catches typos such as "wall_limit_hour").</summary>
     public void RejectUnknown(params string[] known)
     {

@@ -8,76 +8,80 @@ namespace Campaign.Core.Configuration;
 public static class WorkspaceConfigReader
 {
     /// <summary>
-    /// Parses and validates against the machine profiles the workspace knows; throws
+    /// Parses and validates against the cluster profiles the workspace knows; throws
     /// <see cref="InvalidInputException"/> listing every located problem.
     /// </summary>
-    public static WorkspaceConfig Read(string text, string source, IReadOnlyCollection<string> knownMachines)
+    public static WorkspaceConfig Read(string text, string source, IReadOnlyCollection<string> knownClusters)
     {
         var root = TomlFields.Parse(text, source);
 
         var problems = new List<string>();
+        var notices = new List<string>();
         var top = new TomlFields(root, source, problems);
         top.RejectUnknown("campaign", "allocation", "defaults", "length", "selection", "tracking");
-        var known = knownMachines.Count == 0 ? "(no machine profiles found)" : string.Join(", ", knownMachines.Order(StringComparer.Ordinal));
+        var known = knownClusters.Count == 0 ? "(no cluster profiles found)" : string.Join(", ", knownClusters.Order(StringComparer.Ordinal));
 
         var campaign = top.SubTable("campaign", required: true);
         string name = "";
-        var machines = new List<string>();
-        var defaultMachine = "";
+        var clusters = new List<string>();
+        var defaultCluster = "";
         if (campaign is not null)
         {
             var fields = new TomlFields(campaign, source, problems);
-            fields.RejectUnknown("name", "machines", "default_machine");
+            fields.Former("machines", "clusters", notices);
+            fields.Former("default_machine", "default_cluster", notices);
+            fields.RejectUnknown("name", "clusters", "default_cluster");
             name = fields.String("name", true, "the campaign's name, a non-empty string") ?? "";
             if (campaign.Contains("name") && string.IsNullOrWhiteSpace(name))
             {
                 fields.Problem("name", "the campaign's name, a non-empty string");
             }
 
-            machines = fields.StringList("machines", true)?.ToList() ?? new List<string>();
-            if (campaign.Contains("machines"))
+            clusters = fields.StringList("clusters", true)?.ToList() ?? new List<string>();
+            if (campaign.Contains("clusters"))
             {
-                if (machines.Count == 0)
+                if (clusters.Count == 0)
                 {
-                    fields.Problem("machines", "at least one machine, one of the profiles: " + known);
+                    fields.Problem("clusters", "at least one cluster, one of the profiles: " + known);
                 }
 
-                foreach (var unknown in machines.Where(m => !knownMachines.Contains(m)))
+                foreach (var unknown in clusters.Where(m => !knownClusters.Contains(m)))
                 {
-                    fields.Problem("machines", $"machine names with a profile; \"{unknown}\" has none (known: {known})");
+                    fields.Problem("clusters", $"cluster names with a profile; \"{unknown}\" has none (known: {known})");
                 }
 
-                if (machines.Distinct(StringComparer.Ordinal).Count() != machines.Count)
+                if (clusters.Distinct(StringComparer.Ordinal).Count() != clusters.Count)
                 {
-                    fields.Problem("machines", "each machine listed once");
+                    fields.Problem("clusters", "each cluster listed once");
                 }
             }
 
-            defaultMachine = fields.String("default_machine", false) ?? machines.FirstOrDefault() ?? "";
-            if (campaign.Contains("default_machine") && !machines.Contains(defaultMachine))
+            defaultCluster = fields.String("default_cluster", false) ?? clusters.FirstOrDefault() ?? "";
+            if (campaign.Contains("default_cluster") && !clusters.Contains(defaultCluster))
             {
-                fields.Problem("default_machine", "one of campaign.machines: " + string.Join(", ", machines));
+                fields.Problem("default_cluster", "one of campaign.clusters: " + string.Join(", ", clusters));
             }
         }
 
         var allocations = new List<Allocation>();
         foreach (var table in top.TableList("allocation"))
         {
-            var allocation = ReadAllocation(table, source, problems, machines);
+            new TomlFields(table, source, problems).Former("machine", "cluster", notices);
+            var allocation = ReadAllocation(table, source, problems, clusters);
             if (allocation is not null)
             {
                 allocations.Add(allocation);
             }
         }
 
-        foreach (var group in allocations.GroupBy(a => a.Machine))
+        foreach (var group in allocations.GroupBy(a => a.Cluster))
         {
             var ordered = group.OrderBy(a => a.Start).ToList();
             for (var i = 1; i < ordered.Count; i++)
             {
                 if (ordered[i].Start <= ordered[i - 1].End)
                 {
-                    problems.Add($"{source}: allocations for machine \"{group.Key}\" overlap ({ordered[i - 1].Start:yyyy-MM-dd} to {ordered[i - 1].End:yyyy-MM-dd} and {ordered[i].Start:yyyy-MM-dd} to {ordered[i].End:yyyy-MM-dd}): expected periods that do not overlap");
+                    problems.Add($"{source}: allocations for cluster \"{group.Key}\" overlap ({ordered[i - 1].Start:yyyy-MM-dd} to {ordered[i - 1].End:yyyy-MM-dd} and {ordered[i].Start:yyyy-MM-dd} to {ordered[i].End:yyyy-MM-dd}): expected periods that do not overlap");
                 }
             }
         }
@@ -100,24 +104,30 @@ public static class WorkspaceConfigReader
 
         var length = ReadLength(top.SubTable("length", false), source, problems);
         var space = ReadSelection(top.SubTable("selection", false), source, problems);
-        var tracking = ReadTracking(top.SubTable("tracking", false), source, problems);
+        var trackingTable = top.SubTable("tracking", false);
+        if (trackingTable is not null)
+        {
+            new TomlFields(trackingTable, source, problems).Former("segment_minutes", "leg_minutes", notices);
+        }
+
+        var tracking = ReadTracking(trackingTable, source, problems);
         if (problems.Count > 0)
         {
             throw new InvalidInputException(problems);
         }
 
-        return new WorkspaceConfig(name, machines, defaultMachine, allocations, defaults, length, space, tracking);
+        return new WorkspaceConfig(name, clusters, defaultCluster, allocations, defaults, length, space, tracking) { Notices = notices };
     }
 
-    private static Allocation? ReadAllocation(TomlTable table, string source, List<string> problems, IReadOnlyList<string> machines)
+    private static Allocation? ReadAllocation(TomlTable table, string source, List<string> problems, IReadOnlyList<string> clusters)
     {
         var before = problems.Count;
         var fields = new TomlFields(table, source, problems);
-        fields.RejectUnknown("machine", "amount", "unit", "start", "end", "window");
-        var machine = fields.String("machine", true, "one of campaign.machines");
-        if (machine is not null && !machines.Contains(machine))
+        fields.RejectUnknown("cluster", "amount", "unit", "start", "end", "window");
+        var cluster = fields.String("cluster", true, "one of campaign.clusters");
+        if (cluster is not null && !clusters.Contains(cluster))
         {
-            fields.Problem("machine", "one of campaign.machines: " + string.Join(", ", machines));
+            fields.Problem("cluster", "one of campaign.clusters: " + string.Join(", ", clusters));
         }
 
         var amount = fields.PositiveNumber("amount", true, 1e12);
@@ -168,7 +178,7 @@ public static class WorkspaceConfigReader
             return null;
         }
 
-        return new Allocation(machine!, amount!.Value, unit == "node-hours" ? AllocationUnit.NodeHours : AllocationUnit.CoreHours, start!.Value, end!.Value, windows);
+        return new Allocation(cluster!, amount!.Value, unit == "node-hours" ? AllocationUnit.NodeHours : AllocationUnit.CoreHours, start!.Value, end!.Value, windows);
     }
 
     private static Tracking.TrackingSettings ReadTracking(TomlTable? table, string source, List<string> problems)

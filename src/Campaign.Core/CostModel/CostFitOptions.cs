@@ -30,6 +30,6 @@ public sealed record CostFitOptions
     /// <summary>Typical residual SD assumed when weighing the prior against the data (ln units).</summary>
     public double PriorResidualSd { get; init; } = 0.3;
 
-    /// <summary>Runs a machine needs before its own factor is learned.</summary>
-    public int MinRunsPerMachine { get; init; } = 5;
+    /// <summary>Runs a cluster needs before its own factor is learned.</summary>
+    public int MinRunsPerCluster { get; init; } = 5;
 }

@@ -30,7 +30,7 @@ public static class CostModelFitter
         }
 
         var y = data.Select((o, i) => Math.Log(coreHours[i]) + o.LogSpeed).ToArray();
-        var candidates = FeatureSet.Candidates(data, options.MinRunsPerMachine);
+        var candidates = FeatureSet.Candidates(data, options.MinRunsPerCluster);
         var folds = Math.Min(options.Folds, data.Count);
         var assignment = FoldAssignment(data.Count, folds, options.Seed);
         var scores = new List<FeatureSetScore>();
@@ -90,7 +90,7 @@ public static class CostModelFitter
                 ? Enumerable.Range(0, n).Where(i => weights[i] < 0.999).OrderBy(i => weights[i])
                     .Select(i => new DownWeightedRun(data[i].Id, weights[i], (Math.Exp(fit.Residuals[i]) - 1) * 100)).ToArray()
                 : Array.Empty<DownWeightedRun>(),
-            Machines = data.GroupBy(o => o.Machine).ToDictionary(g => g.Key, g => g.Count()),
+            Clusters = data.GroupBy(o => o.Cluster).ToDictionary(g => g.Key, g => g.Count()),
         };
     }
 

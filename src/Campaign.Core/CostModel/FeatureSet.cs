@@ -2,12 +2,12 @@ namespace Campaign.Core.CostModel;
 
 /// <summary>
 /// A named list of regression terms: "intercept", "ln_length", "ln_q", "spin", "level", "ln_cores" and
-/// "machine:NAME" (one indicator per machine other than the reference machine).
+/// "cluster:NAME" (one indicator per cluster other than the reference cluster).
 /// </summary>
 public sealed record FeatureSet(string Name, IReadOnlyList<string> Terms)
 {
-    /// <summary>Prefix of machine indicator terms.</summary>
-    public const string MachinePrefix = "machine:";
+    /// <summary>Prefix of cluster indicator terms.</summary>
+    public const string ClusterPrefix = "cluster:";
 
     /// <summary>The value of every term for one observation.</summary>
     public double[] Row(CostObservation o)
@@ -30,15 +30,15 @@ public sealed record FeatureSet(string Name, IReadOnlyList<string> Terms)
         "spin" => o.SpinTerm,
         "level" => o.Level,
         "ln_cores" => o.LogCores,
-        _ when term.StartsWith(MachinePrefix, StringComparison.Ordinal) => o.Machine == term[MachinePrefix.Length..] ? 1 : 0,
+        _ when term.StartsWith(ClusterPrefix, StringComparison.Ordinal) => o.Cluster == term[ClusterPrefix.Length..] ? 1 : 0,
         _ => throw new ArgumentException($"Unknown cost-model term '{term}'.", nameof(term)),
     };
 
     /// <summary>
     /// The candidate feature sets, simplest first: length, q and level; then the spin term; then ln cores; then
-    /// per-machine factors (only when at least two machines each have <paramref name="minRunsPerMachine"/> runs).
+    /// per-cluster factors (only when at least two clusters each have <paramref name="minRunsPerCluster"/> runs).
     /// </summary>
-    public static IReadOnlyList<FeatureSet> Candidates(IReadOnlyList<CostObservation> data, int minRunsPerMachine = 5)
+    public static IReadOnlyList<FeatureSet> Candidates(IReadOnlyList<CostObservation> data, int minRunsPerCluster = 5)
     {
         var basic = new[] { "intercept", "ln_length", "ln_q", "level" };
         var withSpin = basic.Append("spin").ToArray();
@@ -49,10 +49,10 @@ public sealed record FeatureSet(string Name, IReadOnlyList<string> Terms)
             new("+spin", withSpin),
             new("+spin+cores", withCores),
         };
-        var machines = data.GroupBy(o => o.Machine).Where(g => g.Count() >= minRunsPerMachine).Select(g => g.Key).Order(StringComparer.Ordinal).ToList();
-        if (machines.Count >= 2)
+        var clusters = data.GroupBy(o => o.Cluster).Where(g => g.Count() >= minRunsPerCluster).Select(g => g.Key).Order(StringComparer.Ordinal).ToList();
+        if (clusters.Count >= 2)
         {
-            sets.Add(new FeatureSet("+spin+cores+machine", withCores.Concat(machines.Skip(1).Select(m => MachinePrefix + m)).ToArray()));
+            sets.Add(new FeatureSet("+spin+cores+cluster", withCores.Concat(clusters.Skip(1).Select(m => ClusterPrefix + m)).ToArray()));
         }
 
         return sets;
@@ -62,8 +62,8 @@ public sealed record FeatureSet(string Name, IReadOnlyList<string> Terms)
     /// Physically motivated prior values of each term's coefficient, used when the logs are few: cost grows
     /// linearly with simulated length (1), about linearly with q (1; the small hole sets the step), mildly with
     /// the spin term (0.3), doubles per resolution level (ln 2), and mildly with cores (0.1, parallel
-    /// efficiency). Values are common practice, order of magnitude, not measured; the intercept and machine
-    /// factors have no prior (machine factors are pulled to 0).
+    /// efficiency). Values are common practice, order of magnitude, not measured; the intercept and cluster
+    /// factors have no prior (cluster factors are pulled to 0).
     /// </summary>
     public static double PriorMean(string term) => term switch
     {

@@ -85,8 +85,8 @@ public sealed record FittedCostModel
     /// <summary>Runs with robust weight below 1 (empty unless robust).</summary>
     public required DownWeightedRun[] DownWeighted { get; init; }
 
-    /// <summary>Machines seen in training with their run counts.</summary>
-    public required Dictionary<string, int> Machines { get; init; }
+    /// <summary>Clusters seen in training with their run counts.</summary>
+    public required Dictionary<string, int> Clusters { get; init; }
 
     /// <summary>CV median absolute percentage error of the chosen set.</summary>
     public double CvMedianAbsPctError => Candidates.Single(c => c.Name == FeatureSet).CvMedianAbsPctError;
@@ -114,7 +114,7 @@ public sealed record FittedCostModel
         var reasons = new List<string>();
         for (var j = 0; j < x.Length; j++)
         {
-            if (Terms[j] == "intercept" || Terms[j].StartsWith(CostModel.FeatureSet.MachinePrefix, StringComparison.Ordinal))
+            if (Terms[j] == "intercept" || Terms[j].StartsWith(CostModel.FeatureSet.ClusterPrefix, StringComparison.Ordinal))
             {
                 continue;
             }
@@ -130,9 +130,9 @@ public sealed record FittedCostModel
             reasons.Add($"leverage {leverage.ToString("G3", System.Globalization.CultureInfo.InvariantCulture)} beyond the logs' largest {MaxLeverage.ToString("G3", System.Globalization.CultureInfo.InvariantCulture)}");
         }
 
-        if (!Machines.ContainsKey(o.Machine))
+        if (!Clusters.ContainsKey(o.Cluster))
         {
-            reasons.Add($"no logged runs on machine {o.Machine} (its profile speed is used)");
+            reasons.Add($"no logged runs on cluster {o.Cluster} (its profile speed is used)");
         }
 
         return new CostPrediction(logMedian, se, Math.Exp(logMedian), Math.Exp(logMedian) * Smearing, Math.Exp(logMedian - t * se), Math.Exp(logMedian + t * se), leverage, reasons);
@@ -157,7 +157,7 @@ public sealed record FittedCostModel
     }
 }
 
-/// <summary>A predicted cost in core-hours on the run's machine.</summary>
+/// <summary>A predicted cost in core-hours on the run's cluster.</summary>
 /// <param name="LogMedian">ln of the median.</param>
 /// <param name="LogStandardError">Standard error of a new ln(core-hours): s sqrt(1 + h0).</param>
 /// <param name="Median">exp(yhat).</param>

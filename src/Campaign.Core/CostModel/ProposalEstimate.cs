@@ -4,7 +4,7 @@ namespace Campaign.Core.CostModel;
 /// <param name="Id">Configuration id.</param>
 /// <param name="Level">Resolution level.</param>
 /// <param name="Kind">"run", or "ecc" for the eccentricity-reduction trials of the configuration.</param>
-/// <param name="Machine">Machine.</param>
+/// <param name="Cluster">Cluster.</param>
 /// <param name="Cores">Cores per job.</param>
 /// <param name="LengthM">Simulated length (M) of the run (of all trials together for "ecc").</param>
 /// <param name="Median">Median core-hours consumed.</param>
@@ -27,7 +27,7 @@ public sealed record EstimateRow(
     string Id,
     int Level,
     string Kind,
-    string Machine,
+    string Cluster,
     int Cores,
     double LengthM,
     double Median,
@@ -49,7 +49,7 @@ public sealed record EstimateRow(
 {
     /// <summary>
     /// Charged core-hours at cost quantile <paramref name="p"/>: Runs x exp(ln(median/Runs) + t_p se) x the
-    /// machine's charge ratio (charged per consumed core-hour).
+    /// cluster's charge ratio (charged per consumed core-hour).
     /// </summary>
     public double ChargedAt(double p)
     {
@@ -66,5 +66,5 @@ public sealed record EstimateRow(
 /// <summary>A total with its interval from the Monte Carlo over parameters and residuals.</summary>
 public sealed record EstimateTotal(double Median, double Mean, double Low, double High, double ChargedMedian, double ChargedLow, double ChargedHigh);
 
-/// <summary>Estimates for every simulation of a proposal, with totals overall and per machine.</summary>
-public sealed record ProposalEstimate(IReadOnlyList<EstimateRow> Runs, EstimateTotal Total, IReadOnlyDictionary<string, EstimateTotal> ByMachine, double Interval, int Samples, int Seed);
+/// <summary>Estimates for every simulation of a proposal, with totals overall and per cluster.</summary>
+public sealed record ProposalEstimate(IReadOnlyList<EstimateRow> Runs, EstimateTotal Total, IReadOnlyDictionary<string, EstimateTotal> ByCluster, double Interval, int Samples, int Seed);

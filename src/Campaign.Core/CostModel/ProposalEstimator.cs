@@ -16,13 +16,13 @@ public static class ProposalEstimator
     /// <summary>Estimates every candidate. <paramref name="model"/> may be null when every candidate gives core_hours.</summary>
     public static ProposalEstimate Estimate(
         IReadOnlyList<Candidate> candidates,
-        IReadOnlyDictionary<string, MachineProfile> machines,
+        IReadOnlyDictionary<string, ClusterProfile> clusters,
         FittedCostModel? model,
         StorageModel storage,
         LengthSettings lengthSettings,
         EstimateOptions options)
     {
-        CheckOptions(options, candidates, machines);
+        CheckOptions(options, candidates, clusters);
         var missingModel = candidates.Where(c => c.CoreHours is null).Select(c => c.Id).ToList();
         if (model is null && missingModel.Count > 0)
         {
@@ -39,13 +39,13 @@ public static class ProposalEstimator
             var candidate = candidates[index];
             var rows = new List<EstimateRow>();
             var draws = new List<DrawSpec>();
-            var machine = machines[candidate.Machine];
+            var cluster = clusters[candidate.Cluster];
             var config = candidate.Spec.Configuration;
             var length = SimulatedLength.Estimate(config, lengthSettings).Total;
             var levels = candidate.Spec.Levels.OrderBy(l => l).ToList();
             var predictions = model is null
                 ? null
-                : levels.Select(l => model.Predict(CostObservation.For(candidate.Id, config, l, candidate.Spec.Cores, machine, length), options.Interval)).ToList();
+                : levels.Select(l => model.Predict(CostObservation.For(candidate.Id, config, l, candidate.Spec.Cores, cluster, length), options.Interval)).ToList();
             var shares = predictions?.Select(p => p.Median).ToList() ?? levels.Select(l => Math.Pow(2, l)).ToList();
             for (var k = 0; k < levels.Count; k++)
             {
@@ -53,27 +53,27 @@ public static class ProposalEstimator
                 if (candidate.CoreHours is { } given)
                 {
                     var share = given * shares[k] / shares.Sum();
-                    rows.Add(Row(candidate, level, "run", machine, length, share, share, share, share, storage, options, "given", Array.Empty<string>(), 0, double.PositiveInfinity));
-                    draws.Add(new DrawSpec(null, Math.Log(share), machine, candidate.Spec.Cores));
+                    rows.Add(Row(candidate, level, "run", cluster, length, share, share, share, share, storage, options, "given", Array.Empty<string>(), 0, double.PositiveInfinity));
+                    draws.Add(new DrawSpec(null, Math.Log(share), cluster, candidate.Spec.Cores));
                 }
                 else
                 {
                     var p = predictions![k];
-                    rows.Add(Row(candidate, level, "run", machine, length, p.Median, p.Mean, p.Low, p.High, storage, options, "model", p.Extrapolation, p.LogStandardError, model!.DegreesOfFreedom));
-                    draws.Add(new DrawSpec(model!.Features.Row(CostObservation.For(candidate.Id, config, level, candidate.Spec.Cores, machine, length)), -Math.Log(machine.RelativeSpeed), machine, candidate.Spec.Cores));
+                    rows.Add(Row(candidate, level, "run", cluster, length, p.Median, p.Mean, p.Low, p.High, storage, options, "model", p.Extrapolation, p.LogStandardError, model!.DegreesOfFreedom));
+                    draws.Add(new DrawSpec(model!.Features.Row(CostObservation.For(candidate.Id, config, level, candidate.Spec.Cores, cluster, length)), -Math.Log(cluster.RelativeSpeed), cluster, candidate.Spec.Cores));
                 }
             }
 
             if (options.EccentricityTrials > 0 && model is not null)
             {
-                var observation = CostObservation.For(candidate.Id, config, levels[0], candidate.Spec.Cores, machine, options.EccentricityTrialLength);
+                var observation = CostObservation.For(candidate.Id, config, levels[0], candidate.Spec.Cores, cluster, options.EccentricityTrialLength);
                 var p = model.Predict(observation, options.Interval);
                 var n = options.EccentricityTrials;
-                rows.Add(Row(candidate, levels[0], "ecc", machine, n * options.EccentricityTrialLength, n * p.Median, n * p.Mean, n * p.Low, n * p.High, storage, options, "model", p.Extrapolation, p.LogStandardError, model.DegreesOfFreedom, perRunLength: options.EccentricityTrialLength, runs: n));
+                rows.Add(Row(candidate, levels[0], "ecc", cluster, n * options.EccentricityTrialLength, n * p.Median, n * p.Mean, n * p.Low, n * p.High, storage, options, "model", p.Extrapolation, p.LogStandardError, model.DegreesOfFreedom, perRunLength: options.EccentricityTrialLength, runs: n));
                 var x = model.Features.Row(observation);
                 for (var i = 0; i < n; i++)
                 {
-                    draws.Add(new DrawSpec(x, -Math.Log(machine.RelativeSpeed), machine, candidate.Spec.Cores));
+                    draws.Add(new DrawSpec(x, -Math.Log(cluster.RelativeSpeed), cluster, candidate.Spec.Cores));
                 }
             }
             perCandidate[index] = (rows, draws);
@@ -81,11 +81,11 @@ public static class ProposalEstimator
         var rows = perCandidate.SelectMany(p => p.Rows).ToList();
         var draws = perCandidate.SelectMany(p => p.Draws).ToList();
 
-        var (total, byMachine) = Totals(draws, model, options);
-        return new ProposalEstimate(rows, total, byMachine, options.Interval, options.Samples, options.Seed);
+        var (total, byCluster) = Totals(draws, model, options);
+        return new ProposalEstimate(rows, total, byCluster, options.Interval, options.Samples, options.Seed);
     }
 
-    private static void CheckOptions(EstimateOptions options, IReadOnlyList<Candidate> candidates, IReadOnlyDictionary<string, MachineProfile> machines)
+    private static void CheckOptions(EstimateOptions options, IReadOnlyList<Candidate> candidates, IReadOnlyDictionary<string, ClusterProfile> clusters)
     {
         var checks = new FieldChecks();
         checks.InOpenRange("--interval", options.Interval, 0, 1);
@@ -93,34 +93,34 @@ public static class ProposalEstimator
         checks.InRange("--ecc-trials", options.EccentricityTrials, 0, 20);
         checks.Positive("--ecc-length", options.EccentricityTrialLength, 100_000);
         checks.InRange("--samples", options.Samples, 100, 1_000_000);
-        foreach (var name in candidates.Select(c => c.Machine).Distinct())
+        foreach (var name in candidates.Select(c => c.Cluster).Distinct())
         {
-            if (!machines.TryGetValue(name, out var machine))
+            if (!clusters.TryGetValue(name, out var cluster))
             {
-                checks.Add("cluster", name, "a machine with a profile: " + string.Join(", ", machines.Keys));
+                checks.Add("cluster", name, "a cluster with a profile: " + string.Join(", ", clusters.Keys));
             }
-            else if (machine.WallLimitHours <= options.CheckpointMarginHours)
+            else if (cluster.WallLimitHours <= options.CheckpointMarginHours)
             {
-                checks.Add("--checkpoint-margin", FieldProblem.Show(options.CheckpointMarginHours), $"less than the wall-time limit of {name}, {FieldProblem.Show(machine.WallLimitHours)} h");
+                checks.Add("--checkpoint-margin", FieldProblem.Show(options.CheckpointMarginHours), $"less than the wall-time limit of {name}, {FieldProblem.Show(cluster.WallLimitHours)} h");
             }
         }
 
         checks.ThrowIfAny();
     }
 
-    private static EstimateRow Row(Candidate c, int level, string kind, MachineProfile machine, double length, double median, double mean, double low, double high,
+    private static EstimateRow Row(Candidate c, int level, string kind, ClusterProfile cluster, double length, double median, double mean, double low, double high,
         StorageModel storage, EstimateOptions options, string source, IReadOnlyList<string> extrapolation, double logSe, double dof, double? perRunLength = null, int runs = 1)
     {
         var cores = c.Spec.Cores;
         var wall = median / cores;
-        var usable = machine.WallLimitHours - options.CheckpointMarginHours;
+        var usable = cluster.WallLimitHours - options.CheckpointMarginHours;
         var legs = runs * (int)Math.Max(1, Math.Ceiling(wall / runs / usable - 1e-12));
-        var nodeHours = wall * machine.NodesFor(cores);
+        var nodeHours = wall * cluster.NodesFor(cores);
         return new EstimateRow(
             c.Id,
             level,
             kind,
-            machine.Name,
+            cluster.Name,
             cores,
             length,
             median,
@@ -130,8 +130,8 @@ public static class ProposalEstimator
             wall,
             legs,
             nodeHours,
-            machine.ChargedCoreHours(cores, wall),
-            machine.ChargedCoreHours(cores, high / cores),
+            cluster.ChargedCoreHours(cores, wall),
+            cluster.ChargedCoreHours(cores, high / cores),
             storage.CheckpointGb(level),
             runs * storage.OutputGb(level, perRunLength ?? length),
             source,
@@ -141,13 +141,13 @@ public static class ProposalEstimator
             runs);
     }
 
-    /// <summary>One simulation in the Monte Carlo: its feature row (null for a fixed given cost), offset and machine.</summary>
-    private sealed record DrawSpec(double[]? X, double Offset, MachineProfile Machine, int Cores);
+    /// <summary>One simulation in the Monte Carlo: its feature row (null for a fixed given cost), offset and cluster.</summary>
+    private sealed record DrawSpec(double[]? X, double Offset, ClusterProfile Cluster, int Cores);
 
-    /// <summary>Rows of one machine above which the residual part of its sum is drawn from its exact moments (see docs/cost-model.md).</summary>
+    /// <summary>Rows of one cluster above which the residual part of its sum is drawn from its exact moments (see docs/cost-model.md).</summary>
     public const int CentralLimitRows = 500;
 
-    private sealed class MachineDraws
+    private sealed class ClusterDraws
     {
         public required string Name { get; init; }
 
@@ -158,33 +158,33 @@ public static class ProposalEstimator
         public List<(double[] X, double Offset, double Ratio)> Modelled { get; } = new();
     }
 
-    private static (EstimateTotal Total, IReadOnlyDictionary<string, EstimateTotal> ByMachine) Totals(IReadOnlyList<DrawSpec> draws, FittedCostModel? model, EstimateOptions options)
+    private static (EstimateTotal Total, IReadOnlyDictionary<string, EstimateTotal> ByCluster) Totals(IReadOnlyList<DrawSpec> draws, FittedCostModel? model, EstimateOptions options)
     {
         var samples = options.Samples;
-        var groups = draws.GroupBy(d => d.Machine.Name).OrderBy(g => g.Key, StringComparer.Ordinal).Select(g =>
+        var groups = draws.GroupBy(d => d.Cluster.Name).OrderBy(g => g.Key, StringComparer.Ordinal).Select(g =>
         {
-            var machine = new MachineDraws { Name = g.Key };
+            var cluster = new ClusterDraws { Name = g.Key };
             foreach (var d in g)
             {
                 var ratio = ChargeRatio(d);
                 if (d.X is null)
                 {
-                    machine.FixedConsumed += Math.Exp(d.Offset);
-                    machine.FixedCharged += Math.Exp(d.Offset) * ratio;
+                    cluster.FixedConsumed += Math.Exp(d.Offset);
+                    cluster.FixedCharged += Math.Exp(d.Offset) * ratio;
                 }
                 else
                 {
-                    machine.Modelled.Add((d.X, d.Offset, ratio));
+                    cluster.Modelled.Add((d.X, d.Offset, ratio));
                 }
             }
 
-            return machine;
+            return cluster;
         }).ToList();
 
         var sampler = model is null ? null : new CoefficientSampler(model);
         var p = model?.Coefficients.Length ?? 0;
 
-        // Column-major features per machine, so that each sample's linear predictors are a few passes over arrays.
+        // Column-major features per cluster, so that each sample's linear predictors are a few passes over arrays.
         var columns = groups.Select(g => Enumerable.Range(0, p).Select(k => g.Modelled.Select(m => m.X[k]).ToArray()).ToArray()).ToList();
         var offsets = groups.Select(g => g.Modelled.Select(m => m.Offset).ToArray()).ToList();
         var ratios = groups.Select(g => g.Modelled.Select(m => m.Ratio).ToArray()).ToList();
@@ -193,7 +193,7 @@ public static class ProposalEstimator
         var variance1 = Math.Exp(sd * sd) * (Math.Exp(sd * sd) - 1); // Var exp(e)
         var consumed = new double[samples];
         var charged = new double[samples];
-        var perMachine = groups.Select(_ => (Consumed: new double[samples], Charged: new double[samples])).ToArray();
+        var perCluster = groups.Select(_ => (Consumed: new double[samples], Charged: new double[samples])).ToArray();
 
         // Each sample has its own generator seeded from the seed and its index: the result does not depend on
         // how many threads run the samples.
@@ -297,27 +297,27 @@ public static class ProposalEstimator
 
                 c += groups[g].FixedConsumed;
                 h += groups[g].FixedCharged;
-                perMachine[g].Consumed[s] = c;
-                perMachine[g].Charged[s] = h;
+                perCluster[g].Consumed[s] = c;
+                perCluster[g].Charged[s] = h;
             }
 
             var totalConsumed = 0.0;
             var totalCharged = 0.0;
             for (var g = 0; g < groups.Count; g++)
             {
-                totalConsumed += perMachine[g].Consumed[s];
-                totalCharged += perMachine[g].Charged[s];
+                totalConsumed += perCluster[g].Consumed[s];
+                totalCharged += perCluster[g].Charged[s];
             }
 
             consumed[s] = totalConsumed;
             charged[s] = totalCharged;
         });
 
-        return (Summary(consumed, charged, options.Interval), groups.Select((g, k) => (g.Name, k)).ToDictionary(x => x.Name, x => Summary(perMachine[x.k].Consumed, perMachine[x.k].Charged, options.Interval)));
+        return (Summary(consumed, charged, options.Interval), groups.Select((g, k) => (g.Name, k)).ToDictionary(x => x.Name, x => Summary(perCluster[x.k].Consumed, perCluster[x.k].Charged, options.Interval)));
     }
 
-    /// <summary>Charged core-hours per consumed core-hour on the draw's machine (whole-node rounding and charge factor).</summary>
-    private static double ChargeRatio(DrawSpec d) => d.Machine.ChargedCoreHours(d.Cores, 1) / d.Cores;
+    /// <summary>Charged core-hours per consumed core-hour on the draw's cluster (whole-node rounding and charge factor).</summary>
+    private static double ChargeRatio(DrawSpec d) => d.Cluster.ChargedCoreHours(d.Cores, 1) / d.Cores;
 
     private static EstimateTotal Summary(double[] consumed, double[] charged, double interval)
     {

@@ -10,13 +10,13 @@ namespace Campaign.Core.CostModel;
 /// <param name="Lengths">Every non-failed run with its simulated length, for the storage model.</param>
 public sealed record TrainingSet(IReadOnlyList<CostObservation> Observations, IReadOnlyList<double> CoreHours, int Skipped, IReadOnlyList<(RunLog Log, double Length)> Lengths)
 {
-    /// <summary>Builds the set; a run on a machine without a profile is an input error naming the run.</summary>
-    public static TrainingSet From(IReadOnlyList<RunLog> logs, IReadOnlyDictionary<string, MachineProfile> machines, LengthSettings settings)
+    /// <summary>Builds the set; a run on a cluster without a profile is an input error naming the run.</summary>
+    public static TrainingSet From(IReadOnlyList<RunLog> logs, IReadOnlyDictionary<string, ClusterProfile> clusters, LengthSettings settings)
     {
-        var unknown = logs.Where(l => !machines.ContainsKey(l.Machine)).ToList();
+        var unknown = logs.Where(l => !clusters.ContainsKey(l.Cluster)).ToList();
         if (unknown.Count > 0)
         {
-            throw new InvalidInputException(unknown.Select(l => $"run {l.RunId}: machine = {l.Machine}: expected a machine with a profile ({string.Join(", ", machines.Keys)}); restore its profile in machines/").ToList());
+            throw new InvalidInputException(unknown.Select(l => $"run {l.RunId}: cluster = {l.Cluster}: expected a cluster with a profile ({string.Join(", ", clusters.Keys)}); restore its profile in clusters/").ToList());
         }
 
         var observations = new List<CostObservation>();
@@ -24,7 +24,7 @@ public sealed record TrainingSet(IReadOnlyList<CostObservation> Observations, IR
         var lengths = new List<(RunLog, double)>();
         foreach (var log in logs)
         {
-            var observation = CostObservation.FromLog(log, machines[log.Machine], settings);
+            var observation = CostObservation.FromLog(log, clusters[log.Cluster], settings);
             if (observation is null)
             {
                 continue;

@@ -1,6 +1,6 @@
 namespace Campaign.Core.Domain;
 
-/// <summary>Which batch system a machine runs.</summary>
+/// <summary>Which batch system a cluster runs.</summary>
 public enum BatchSystemKind
 {
     /// <summary>Plain processes on a workstation, run by Campaign itself.</summary>

@@ -18,7 +18,7 @@ public enum RunOutcome
 /// <param name="Configuration">Physics of the run.</param>
 /// <param name="Level">Resolution level.</param>
 /// <param name="Cores">Cores per job.</param>
-/// <param name="Machine">Machine it ran on.</param>
+/// <param name="Cluster">Cluster it ran on.</param>
 /// <param name="WallHours">Total wall-clock hours over all its legs.</param>
 /// <param name="Outcome">How it ended.</param>
 /// <param name="CoreHours">Charged core-hours, when known.</param>
@@ -34,7 +34,7 @@ public sealed record RunLog(
     BinaryConfiguration Configuration,
     int Level,
     int Cores,
-    string Machine,
+    string Cluster,
     double WallHours,
     RunOutcome Outcome,
     double? CoreHours = null,

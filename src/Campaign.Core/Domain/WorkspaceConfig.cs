@@ -8,15 +8,19 @@ namespace Campaign.Core.Domain;
 public sealed record RunDefaults(IReadOnlyList<int> Levels, int? Cores);
 
 /// <summary>
-/// The human-edited settings of one workspace (campaign.toml): the campaign's name, the machines it may use,
+/// The human-edited settings of one workspace (campaign.toml): the campaign's name, the clusters it may use,
 /// its allocations, defaults for planned runs and the run-length settings.
 /// </summary>
 public sealed record WorkspaceConfig(
     string Name,
-    IReadOnlyList<string> Machines,
-    string DefaultMachine,
+    IReadOnlyList<string> Clusters,
+    string DefaultCluster,
     IReadOnlyList<Allocation> Allocations,
     RunDefaults Defaults,
     LengthSettings Length,
     Selection.ParameterSpace Selection,
-    Tracking.TrackingSettings Tracking);
+    Tracking.TrackingSettings Tracking)
+{
+    /// <summary>Things read but worth a word: fields written under a former name ("file:line:column: ...").</summary>
+    public IReadOnlyList<string> Notices { get; init; } = Array.Empty<string>();
+}

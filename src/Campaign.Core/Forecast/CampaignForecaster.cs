@@ -6,8 +6,8 @@ namespace Campaign.Core.Forecast;
 /// <summary>
 /// A seeded Monte Carlo discrete-event simulation of the rest of a campaign. Each replica draws one coefficient
 /// vector of the cost model for all runs (shared parameter uncertainty) and a residual per run; each run's
-/// remaining wall time is split into legs by its machine's wall-time limit (less the checkpoint margin);
-/// every leg waits in its machine's queue (a log-normal wait with the profile's median and 90th
+/// remaining wall time is split into legs by its cluster's wall-time limit (less the checkpoint margin);
+/// every leg waits in its cluster's queue (a log-normal wait with the profile's median and 90th
 /// percentile), within the limits on jobs queued and running; a leg fails with the learned probability,
 /// losing its work; a leg is started only within the allocation's period (not before it starts, not after
 /// it ends) and while the allocation can still cover its worst case (as the tracker's budget guard does).
@@ -18,7 +18,7 @@ public static class CampaignForecaster
     /// <summary>Runs the forecast from <paramref name="start"/>; <paramref name="progress"/> hears the share of replicas done.</summary>
     public static ForecastResult Run(
         IReadOnlyList<ForecastRun> runs,
-        IReadOnlyDictionary<string, ForecastMachine> machines,
+        IReadOnlyDictionary<string, ForecastCluster> clusters,
         FittedCostModel? model,
         DateTimeOffset start,
         ForecastOptions options,
@@ -29,7 +29,7 @@ public static class CampaignForecaster
         var n = runs.Count;
         var finish = new double[replicas, n];
         var legs = new double[n];
-        var windows = machines.Values
+        var windows = clusters.Values
             .Where(m => m.Allocation is not null)
             .SelectMany(m => WindowsOf(m))
             .ToList();
@@ -38,7 +38,7 @@ public static class CampaignForecaster
 
         var sampler = model is null ? null : new CoefficientSampler(model);
 
-        var byMachine = Enumerable.Range(0, n).GroupBy(i => runs[i].Machine).OrderBy(g => g.Key, StringComparer.Ordinal).Select(g => g.ToArray()).ToList();
+        var byCluster = Enumerable.Range(0, n).GroupBy(i => runs[i].Cluster).OrderBy(g => g.Key, StringComparer.Ordinal).Select(g => g.ToArray()).ToList();
         var legCounts = new int[replicas, n];
 
         // Replicas are independent: each has its own generator, seeded from the seed and its index, so the
@@ -72,10 +72,10 @@ public static class CampaignForecaster
             }
 
             var allFit = true;
-            foreach (var group in byMachine)
+            foreach (var group in byCluster)
             {
-                var machine = machines[runs[group[0]].Machine];
-                allFit &= SimulateMachine(group, runs, machine, remaining, start, options, random, r, finish, legCounts, windows, windowCharge);
+                var cluster = clusters[runs[group[0]].Cluster];
+                allFit &= SimulateCluster(group, runs, cluster, remaining, start, options, random, r, finish, legCounts, windows, windowCharge);
             }
 
             if (allFit)
@@ -119,52 +119,52 @@ public static class CampaignForecaster
                 times[r] = finish[r, i];
             }
 
-            var machine = machines[runs[i].Machine];
-            var end = machine.Allocation is { } a ? Hours(start, a.End.ToDateTime(TimeOnly.MaxValue, DateTimeKind.Utc)) : double.PositiveInfinity;
+            var cluster = clusters[runs[i].Cluster];
+            var end = cluster.Allocation is { } a ? Hours(start, a.End.ToDateTime(TimeOnly.MaxValue, DateTimeKind.Utc)) : double.PositiveInfinity;
             var late = times.Count(t => t > end) / (double)replicas;
-            runForecasts.Add(new RunForecast(runs[i].Id, runs[i].Machine, Quantiles(times, start), late, legs[i] / replicas));
+            runForecasts.Add(new RunForecast(runs[i].Id, runs[i].Cluster, Quantiles(times, start), late, legs[i] / replicas));
         }
 
         var windowForecasts = windows.Select((w, k) =>
         {
             var charges = Enumerable.Range(0, replicas).Select(r => windowCharge[k, r]).Order().ToArray();
-            return new WindowForecast(w.Machine, w.Start, w.End, w.Amount, charges.Average(), Quantile(charges, 0.1), Quantile(charges, 0.9),
+            return new WindowForecast(w.Cluster, w.Start, w.End, w.Amount, charges.Average(), Quantile(charges, 0.1), Quantile(charges, 0.9),
                 charges.Count(c => c > w.Amount) / (double)replicas, charges.Count(c => c < 0.9 * w.Amount) / (double)replicas);
         }).ToList();
         return new ForecastResult(start, replicas, Quantiles(campaignFinish, start), fits / (double)replicas, runForecasts, windowForecasts);
     }
 
-    private sealed record Window(string Machine, DateOnly Start, DateOnly End, double Amount, double StartHour, double EndHour);
+    private sealed record Window(string Cluster, DateOnly Start, DateOnly End, double Amount, double StartHour, double EndHour);
 
-    private static IEnumerable<Window> WindowsOf(ForecastMachine machine)
+    private static IEnumerable<Window> WindowsOf(ForecastCluster cluster)
     {
-        var a = machine.Allocation!;
-        var factor = a.Unit == Domain.AllocationUnit.CoreHours ? 1 : machine.Profile.CoresPerNode;
+        var a = cluster.Allocation!;
+        var factor = a.Unit == Domain.AllocationUnit.CoreHours ? 1 : cluster.Profile.CoresPerNode;
         if (a.Windows.Count == 0)
         {
-            yield return new Window(machine.Profile.Name, a.Start, a.End, a.Amount * factor, 0, 0);
+            yield return new Window(cluster.Profile.Name, a.Start, a.End, a.Amount * factor, 0, 0);
             yield break;
         }
 
         foreach (var w in a.Windows)
         {
-            yield return new Window(machine.Profile.Name, w.Start, w.End, w.Amount * factor, 0, 0);
+            yield return new Window(cluster.Profile.Name, w.Start, w.End, w.Amount * factor, 0, 0);
         }
     }
 
-    /// <summary>One machine in one replica; returns true when every run on it finished within its allocation.</summary>
-    private static bool SimulateMachine(int[] runIndices, IReadOnlyList<ForecastRun> runs, ForecastMachine machine, double[] remaining, DateTimeOffset start,
+    /// <summary>One cluster in one replica; returns true when every run on it finished within its allocation.</summary>
+    private static bool SimulateCluster(int[] runIndices, IReadOnlyList<ForecastRun> runs, ForecastCluster cluster, double[] remaining, DateTimeOffset start,
         ForecastOptions options, Random random, int replica, double[,] finish, int[,] legCount, IReadOnlyList<Window> windows, double[,] windowCharge)
     {
-        var profile = machine.Profile;
+        var profile = cluster.Profile;
         var usable = Math.Max(profile.WallLimitHours - options.CheckpointMarginHours, profile.WallLimitHours / 2);
-        var allocation = machine.Allocation;
-        var budget = allocation is null ? double.PositiveInfinity : allocation.CoreHours(profile) - machine.AlreadyCharged;
+        var allocation = cluster.Allocation;
+        var budget = allocation is null ? double.PositiveInfinity : allocation.CoreHours(profile) - cluster.AlreadyCharged;
         var allocationEnd = allocation is null ? double.PositiveInfinity : Hours(start, allocation.End.ToDateTime(TimeOnly.MaxValue, DateTimeKind.Utc));
         var allocationStart = allocation is null ? 0 : Math.Max(0, Hours(start, allocation.Start.ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc)));
-        var myWindows = Enumerable.Range(0, windows.Count).Where(k => windows[k].Machine == profile.Name).ToArray();
+        var myWindows = Enumerable.Range(0, windows.Count).Where(k => windows[k].Cluster == profile.Name).ToArray();
         var windowHours = myWindows.Select(k => (Start: Hours(start, windows[k].Start.ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc)), End: Hours(start, windows[k].End.ToDateTime(TimeOnly.MaxValue, DateTimeKind.Utc)))).ToArray();
-        var (waitMedian, waitP90, _) = machine.QueueWait();
+        var (waitMedian, waitP90, _) = cluster.QueueWait();
         var sigma = waitMedian > 0 && waitP90 > waitMedian ? Math.Log(waitP90 / waitMedian) / 1.2815515655446004 : 0;
         double Wait() => waitMedian <= 0 ? 0 : waitMedian * Math.Exp(sigma * Normal.Sample(random, 0, 1));
 
@@ -295,7 +295,7 @@ public static class CampaignForecaster
 
         if (allocation is not null && myWindows.Length == 1 && allocation.Windows.Count == 0)
         {
-            windowCharge[myWindows[0], replica] += machine.AlreadyCharged;
+            windowCharge[myWindows[0], replica] += cluster.AlreadyCharged;
         }
 
         return allFinished && runIndices.All(i => !double.IsPositiveInfinity(finish[replica, i]));

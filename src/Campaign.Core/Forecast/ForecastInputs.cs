@@ -4,22 +4,22 @@ namespace Campaign.Core.Forecast;
 
 /// <summary>One run to forecast (a configuration at one level), as far as it still has to go.</summary>
 /// <param name="Id">Run id.</param>
-/// <param name="Machine">Machine it runs on.</param>
+/// <param name="Cluster">Cluster it runs on.</param>
 /// <param name="Cores">Cores per job.</param>
 /// <param name="FeatureRow">The cost model's feature row, or null when its cost is given.</param>
-/// <param name="LogOffset">Added to x'b: minus ln(machine speed).</param>
+/// <param name="LogOffset">Added to x'b: minus ln(cluster speed).</param>
 /// <param name="GivenCoreHours">Its consumed core-hours when no model applies.</param>
 /// <param name="DoneFraction">Fraction of its simulated length already done (0 for a planned run).</param>
 /// <param name="Active">True when a leg of it is queued or running now (its first leg needs no new submission wait).</param>
-public sealed record ForecastRun(string Id, string Machine, int Cores, double[]? FeatureRow, double LogOffset, double? GivenCoreHours, double DoneFraction, bool Active);
+public sealed record ForecastRun(string Id, string Cluster, int Cores, double[]? FeatureRow, double LogOffset, double? GivenCoreHours, double DoneFraction, bool Active);
 
-/// <summary>A machine as the forecast sees it: its queue and its allocation.</summary>
-/// <param name="Profile">The machine profile (wall limit, queue limits, queue waits, charge policy).</param>
+/// <summary>A cluster as the forecast sees it: its queue and its allocation.</summary>
+/// <param name="Profile">The cluster profile (wall limit, queue limits, queue waits, charge policy).</param>
 /// <param name="Allocation">Its allocation (with windows), or null when it has none.</param>
 /// <param name="AlreadyCharged">Core-hours already charged in the allocation before the forecast starts.</param>
-/// <param name="MeasuredWaitsHours">Queue waits the campaign has measured on this machine; with at least
-/// <see cref="ForecastMachine.MinimumMeasuredWaits"/> of them their median and 90th percentile replace the profile's.</param>
-public sealed record ForecastMachine(MachineProfile Profile, Allocation? Allocation, double AlreadyCharged, IReadOnlyList<double>? MeasuredWaitsHours = null)
+/// <param name="MeasuredWaitsHours">Queue waits the campaign has measured on this cluster; with at least
+/// <see cref="ForecastCluster.MinimumMeasuredWaits"/> of them their median and 90th percentile replace the profile's.</param>
+public sealed record ForecastCluster(ClusterProfile Profile, Allocation? Allocation, double AlreadyCharged, IReadOnlyList<double>? MeasuredWaitsHours = null)
 {
     /// <summary>Measured waits needed before they replace the profile's stated distribution.</summary>
     public const int MinimumMeasuredWaits = 5;

@@ -34,8 +34,8 @@ public sealed record PlanRunStanding(PlanEntry Entry, RunRecord? Run, PlanRunSta
     /// <summary>True once a real run of it is tracked.</summary>
     public bool IsStarted => Status != PlanRunStatus.ToCome;
 
-    /// <summary>The machine it runs (or will run) on.</summary>
-    public string Machine => Run?.Machine ?? Entry.Machine;
+    /// <summary>The cluster it runs (or will run) on.</summary>
+    public string Cluster => Run?.Cluster ?? Entry.Cluster;
 
     /// <summary>
     /// Charged core-hours still expected at the plan's quantile: the planned cost when to come, the planned cost
@@ -128,17 +128,17 @@ public sealed class CampaignStanding
             }
 
             var counts = config.GroupBy(r => r.Status).OrderBy(g => g.Key).Select(g => $"{g.Count().ToString(CultureInfo.InvariantCulture)} {Describe(g.Key)}");
-            var machine = config.First(r => r.IsStarted).Machine;
-            carried.Add(new CarriedConfiguration(config.Key, machine, config.Sum(r => r.RemainingCost), string.Join(", ", counts)));
+            var cluster = config.First(r => r.IsStarted).Cluster;
+            carried.Add(new CarriedConfiguration(config.Key, cluster, config.Sum(r => r.RemainingCost), string.Join(", ", counts)));
         }
 
         return carried;
     }
 
-    /// <summary>What the carried configurations still need, per machine they run on.</summary>
+    /// <summary>What the carried configurations still need, per cluster they run on.</summary>
     public IReadOnlyDictionary<string, double> RemainingOf(IReadOnlyCollection<string> configIds) =>
         Runs.Where(r => configIds.Contains(r.Entry.ConfigId))
-            .GroupBy(r => r.Machine, StringComparer.Ordinal)
+            .GroupBy(r => r.Cluster, StringComparer.Ordinal)
             .ToDictionary(g => g.Key, g => g.Sum(r => r.RemainingCost), StringComparer.Ordinal);
 
     /// <summary>The entries of <paramref name="configIds"/> in the plan (runs and trials), for carrying them over.</summary>

@@ -18,7 +18,7 @@ public enum PlanEntryKind
 /// it was when the plan was saved so that nothing is approximated later.
 /// </summary>
 /// <param name="Configuration">The binary's physics.</param>
-/// <param name="Estimate">The estimate row (machine, cores, core-hours with the interval, wall hours, legs, charges, storage).</param>
+/// <param name="Estimate">The estimate row (cluster, cores, core-hours with the interval, wall hours, legs, charges, storage).</param>
 /// <param name="Cost">Charged core-hours at the plan's quantile (what the selection charged against the budget).</param>
 /// <param name="TargetLength">Simulated length (M) the run must reach, or null for a row migrated from an older plan (computed at adoption).</param>
 public sealed record PlanEntry(BinaryConfiguration Configuration, EstimateRow Estimate, double Cost, double? TargetLength)
@@ -32,8 +32,8 @@ public sealed record PlanEntry(BinaryConfiguration Configuration, EstimateRow Es
     /// <summary>Run or trials.</summary>
     public PlanEntryKind Kind => Estimate.Kind == "ecc" ? PlanEntryKind.Trials : PlanEntryKind.Run;
 
-    /// <summary>Machine it was planned on.</summary>
-    public string Machine => Estimate.Machine;
+    /// <summary>Cluster it was planned on.</summary>
+    public string Cluster => Estimate.Cluster;
 
     /// <summary>Cores per job.</summary>
     public int Cores => Estimate.Cores;
@@ -44,10 +44,10 @@ public sealed record PlanEntry(BinaryConfiguration Configuration, EstimateRow Es
 
 /// <summary>A configuration a re-plan kept because it had started, with what was left of it.</summary>
 /// <param name="ConfigId">Configuration id.</param>
-/// <param name="Machine">Machine its remaining cost is charged to.</param>
+/// <param name="Cluster">Cluster its remaining cost is charged to.</param>
 /// <param name="RemainingCost">Charged core-hours still expected at the plan's quantile.</param>
 /// <param name="Why">What had happened to it (for example "2 of 3 levels running, 1 finished").</param>
-public sealed record CarriedConfiguration(string ConfigId, string Machine, double RemainingCost, string Why);
+public sealed record CarriedConfiguration(string ConfigId, string Cluster, double RemainingCost, string Why);
 
 /// <summary>A stored plan version.</summary>
 /// <param name="Id">Version number.</param>

@@ -7,7 +7,7 @@ namespace Campaign.Core.Lifecycle;
 /// <param name="RunId">Run id.</param>
 /// <param name="ConfigId">Configuration id.</param>
 /// <param name="Level">Resolution level.</param>
-/// <param name="Machine">Machine it runs on.</param>
+/// <param name="Cluster">Cluster it runs on.</param>
 /// <param name="Cores">Cores per job.</param>
 /// <param name="Configuration">The binary's physics.</param>
 /// <param name="TargetLength">Simulated length (M) it must reach.</param>
@@ -20,7 +20,7 @@ public sealed record RunRecord(
     string RunId,
     string ConfigId,
     int Level,
-    string Machine,
+    string Cluster,
     int Cores,
     BinaryConfiguration Configuration,
     double TargetLength,
@@ -49,14 +49,14 @@ public enum LegPhase
 
 /// <summary>What a job leg means for the budget.</summary>
 /// <param name="RunId">Its run.</param>
-/// <param name="Machine">The machine it is charged on.</param>
+/// <param name="Cluster">The cluster it is charged on.</param>
 /// <param name="Phase">Intent, submitted or ended.</param>
 /// <param name="WorstCase">Charged core-hours if it runs its whole wall time (committed while open).</param>
 /// <param name="Charged">Charged core-hours once ended.</param>
 /// <param name="SubmittedAt">When it was submitted.</param>
 /// <param name="StartedAt">When it was first seen running.</param>
 /// <param name="EndedAt">When it ended.</param>
-public sealed record LegCharge(string RunId, string Machine, LegPhase Phase, double WorstCase, double? Charged, DateTimeOffset SubmittedAt, DateTimeOffset? StartedAt, DateTimeOffset? EndedAt)
+public sealed record LegCharge(string RunId, string Cluster, LegPhase Phase, double WorstCase, double? Charged, DateTimeOffset SubmittedAt, DateTimeOffset? StartedAt, DateTimeOffset? EndedAt)
 {
     /// <summary>True until it has ended.</summary>
     public bool IsOpen => Phase != LegPhase.Ended;
@@ -71,9 +71,9 @@ public sealed record LegCharge(string RunId, string Machine, LegPhase Phase, dou
 /// <param name="Why">What happened.</param>
 public sealed record RunEvent(long Id, string At, string RunId, string FromState, string ToState, string Why);
 
-/// <summary>A machine whose batch system could not be used, since when, and the first line of what it said.</summary>
-/// <param name="Machine">Machine.</param>
+/// <summary>A cluster whose batch system could not be used, since when, and the first line of what it said.</summary>
+/// <param name="Cluster">Cluster.</param>
 /// <param name="Since">First cycle it failed in (in this spell).</param>
 /// <param name="LastAt">Latest cycle it failed in.</param>
 /// <param name="Message">First line of the batch system's error (the whole text is in the event log).</param>
-public sealed record MachineFault(string Machine, DateTimeOffset Since, DateTimeOffset LastAt, string Message);
+public sealed record ClusterFault(string Cluster, DateTimeOffset Since, DateTimeOffset LastAt, string Message);

@@ -2,7 +2,7 @@ namespace Campaign.Core.Selection;
 
 /// <summary>
 /// The value objective with several budget pools: each candidate is left out or assigned to one of its
-/// options (a machine), within every pool's capacity. Depth-first branch and bound; the bound at a node is the
+/// options (a cluster), within every pool's capacity. Depth-first branch and bound; the bound at a node is the
 /// value so far plus, for every pool, the Dantzig bound of the undecided candidates' options in that pool
 /// (a candidate may count in several pools, which only loosens the bound). Must runs come first and are
 /// never left out. Bounded by a node limit.
@@ -113,12 +113,12 @@ internal static class MultiKnapsack
         DeepStack.Run(() => Search(0, 0, 0));
         if (forced > 0 && best.Take(forced).Any(o => o < 0))
         {
-            throw new Domain.InvalidInputException(new[] { "must runs do not fit the machines' budgets together in any assignment: expected must runs that fit" });
+            throw new Domain.InvalidInputException(new[] { "must runs do not fit the clusters' budgets together in any assignment: expected must runs that fit" });
         }
 
         var chosen = Enumerable.Range(0, n).Where(i => best[i] >= 0).Select(i => new Assignment(order[i], best[i])).ToList();
         return stopped
-            ? new Result(chosen, bestValue, Math.Max(bestValue, rootBound), $"branch and bound over machine assignments stopped after {Knapsack.NodeLimit} nodes: best found, bound reported")
-            : new Result(chosen, bestValue, bestValue, "exact: branch and bound over machine assignments");
+            ? new Result(chosen, bestValue, Math.Max(bestValue, rootBound), $"branch and bound over cluster assignments stopped after {Knapsack.NodeLimit} nodes: best found, bound reported")
+            : new Result(chosen, bestValue, bestValue, "exact: branch and bound over cluster assignments");
     }
 }

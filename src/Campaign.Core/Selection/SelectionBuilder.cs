@@ -7,11 +7,11 @@ namespace Campaign.Core.Selection;
 /// <summary>How to build a selection problem from candidates.</summary>
 /// <param name="Objective">What to maximise.</param>
 /// <param name="Quantile">Cost quantile charged against the budget (0.5 = median; 0.8 or 0.9 for a risk-averse plan).</param>
-/// <param name="Budget">One budget in charged core-hours for every machine, or null to use <paramref name="Allocations"/>.</param>
-/// <param name="Allocations">Charged core-hours per machine (one pool each), used when <paramref name="Budget"/> is null.</param>
+/// <param name="Budget">One budget in charged core-hours for every cluster, or null to use <paramref name="Allocations"/>.</param>
+/// <param name="Allocations">Charged core-hours per cluster (one pool each), used when <paramref name="Budget"/> is null.</param>
 /// <param name="Exclude">Candidate ids never to choose.</param>
 /// <param name="MaxRuns">Most configurations to choose.</param>
-/// <param name="Reserved">Budget already gone per machine: spent so far and what the started runs still need (taken off before choosing).</param>
+/// <param name="Reserved">Budget already gone per cluster: spent so far and what the started runs still need (taken off before choosing).</param>
 public sealed record SelectionRequest(
     SelectionObjective Objective,
     double Quantile,
@@ -35,11 +35,11 @@ public static class SelectionBuilder
 {
     /// <summary>
     /// Builds the problem: every configuration is costed with all its levels (and eccentricity trials, when
-    /// asked) on every machine it may use that has a budget, in charged core-hours at the requested quantile.
+    /// asked) on every cluster it may use that has a budget, in charged core-hours at the requested quantile.
     /// </summary>
     public static BuiltSelection Build(
         IReadOnlyList<Candidate> candidates,
-        IReadOnlyDictionary<string, MachineProfile> machines,
+        IReadOnlyDictionary<string, ClusterProfile> clusters,
         FittedCostModel? model,
         StorageModel storage,
         LengthSettings length,
@@ -76,22 +76,22 @@ public static class SelectionBuilder
             throw new InvalidInputException(new[] { "no budget: expected --budget CORE_HOURS, or [[allocation]] entries in campaign.toml" });
         }
 
-        int? PoolOf(string machine) => request.Budget is not null ? 0 : pools.FindIndex(p => p.Name == machine) is var i and >= 0 ? i : null;
+        int? PoolOf(string cluster) => request.Budget is not null ? 0 : pools.FindIndex(p => p.Name == cluster) is var i and >= 0 ? i : null;
 
         var kept = candidates.Where(c => !request.Exclude.Contains(c.Id)).ToList();
         var dropped = new List<(string, string)>();
-        var copies = new List<(int Candidate, string Machine, Candidate Copy)>();
+        var copies = new List<(int Candidate, string Cluster, Candidate Copy)>();
         for (var k = 0; k < kept.Count; k++)
         {
             var c = kept[k];
-            var allowed = c.Machines.ToArray();
+            var allowed = c.Clusters.ToArray();
             foreach (var m in allowed.Where(m => PoolOf(m) is not null))
             {
-                copies.Add((k, m, c with { Id = c.Id + "@" + m, Machine = m, Machines = new[] { m } }));
+                copies.Add((k, m, c with { Id = c.Id + "@" + m, Cluster = m, Clusters = new[] { m } }));
             }
         }
 
-        var estimate = ProposalEstimator.Estimate(copies.Select(x => x.Copy).ToList(), machines, model, storage, length, estimateOptions with { Samples = 100 });
+        var estimate = ProposalEstimator.Estimate(copies.Select(x => x.Copy).ToList(), clusters, model, storage, length, estimateOptions with { Samples = 100 });
         var rowsByCopy = estimate.Runs.GroupBy(r => r.Id).ToDictionary(g => g.Key, g => (IReadOnlyList<EstimateRow>)g.ToList());
         var selectionCandidates = new List<SelectionCandidate>();
         var entries = new List<SelectionEntry>();
@@ -101,10 +101,10 @@ public static class SelectionBuilder
             var mine = copies.Where(x => x.Candidate == k).ToList();
             if (mine.Count == 0)
             {
-                var reason = $"no budget on its machines ({string.Join(", ", c.Machines)})";
+                var reason = $"no budget on its clusters ({string.Join(", ", c.Clusters)})";
                 if (c.Must)
                 {
-                    throw new InvalidInputException(new[] { $"{c.Id}: must run, but {reason}: expected an allocation for one of its machines, or --budget" });
+                    throw new InvalidInputException(new[] { $"{c.Id}: must run, but {reason}: expected an allocation for one of its clusters, or --budget" });
                 }
 
                 dropped.Add((c.Id, reason));
@@ -114,7 +114,7 @@ public static class SelectionBuilder
             var options = mine.Select(x =>
             {
                 var rows = rowsByCopy[x.Copy.Id];
-                return new SelectionOption(PoolOf(x.Machine)!.Value, x.Machine, rows.Sum(r => r.ChargedAt(request.Quantile)), rows.Sum(r => r.ChargedCoreHours), rows.Sum(r => r.ChargedHigh));
+                return new SelectionOption(PoolOf(x.Cluster)!.Value, x.Cluster, rows.Sum(r => r.ChargedAt(request.Quantile)), rows.Sum(r => r.ChargedCoreHours), rows.Sum(r => r.ChargedHigh));
             }).ToList();
             selectionCandidates.Add(new SelectionCandidate(c.Id, space.Coordinates(c.Spec.Configuration), c.Value, c.Must, options));
             entries.Add(new SelectionEntry(c, mine.Select(x => rowsByCopy[x.Copy.Id]).ToList()));

@@ -1,12 +1,12 @@
 namespace Campaign.Core.Selection;
 
-/// <summary>One way to run a candidate: on a budget pool (a machine's allocation, or one shared budget) at a cost.</summary>
+/// <summary>One way to run a candidate: on a budget pool (a cluster's allocation, or one shared budget) at a cost.</summary>
 /// <param name="Pool">Index of the budget pool.</param>
-/// <param name="Machine">Machine the candidate would run on.</param>
+/// <param name="Cluster">Cluster the candidate would run on.</param>
 /// <param name="Cost">Cost charged against the pool (at the chosen quantile).</param>
 /// <param name="Median">Median cost, for reporting.</param>
 /// <param name="High">Upper cost, for reporting.</param>
-public sealed record SelectionOption(int Pool, string Machine, double Cost, double Median, double High);
+public sealed record SelectionOption(int Pool, string Cluster, double Cost, double Median, double High);
 
 /// <summary>A configuration that may be chosen (with all its levels).</summary>
 /// <param name="Id">Identifier.</param>
@@ -16,7 +16,7 @@ public sealed record SelectionOption(int Pool, string Machine, double Cost, doub
 /// <param name="Options">Where it may run and at what cost; at least one.</param>
 public sealed record SelectionCandidate(string Id, double[] Coordinates, double Value, bool Must, IReadOnlyList<SelectionOption> Options);
 
-/// <summary>A budget: a machine's allocation, or the one budget given on the command line.</summary>
+/// <summary>A budget: a cluster's allocation, or the one budget given on the command line.</summary>
 public sealed record BudgetPool(string Name, double Capacity);
 
 /// <summary>Which objective to maximise.</summary>

@@ -4,23 +4,23 @@ namespace Campaign.Core.Selection;
 
 /// <summary>A chosen configuration with where it runs, what it costs and what it adds.</summary>
 /// <param name="Id">Candidate id.</param>
-/// <param name="Machine">Machine it is assigned to.</param>
+/// <param name="Cluster">Cluster it is assigned to.</param>
 /// <param name="Cost">Charged core-hours at the chosen quantile.</param>
 /// <param name="Median">Charged core-hours at the median.</param>
 /// <param name="High">Charged core-hours at the upper end of the 90% interval.</param>
 /// <param name="Value">Its value weight.</param>
 /// <param name="Gain">What it added to the objective, in the order chosen.</param>
 /// <param name="Must">True when it had to be taken.</param>
-public sealed record ChosenRun(string Id, string Machine, double Cost, double Median, double High, double Value, double Gain, bool Must);
+public sealed record ChosenRun(string Id, string Cluster, double Cost, double Median, double High, double Value, double Gain, bool Must);
 
 /// <summary>A candidate left out, and why.</summary>
 /// <param name="Id">Candidate id.</param>
-/// <param name="Machine">Its cheapest machine.</param>
+/// <param name="Cluster">Its cheapest cluster.</param>
 /// <param name="Cost">Its cost there at the chosen quantile.</param>
 /// <param name="Gain">What it would add to the chosen set.</param>
 /// <param name="CostPerGain">Cost per unit of gain (infinite when it adds nothing).</param>
 /// <param name="Reason">Why it is not in the set.</param>
-public sealed record LeftOutRun(string Id, string Machine, double Cost, double Gain, double CostPerGain, string Reason);
+public sealed record LeftOutRun(string Id, string Cluster, double Cost, double Gain, double CostPerGain, string Reason);
 
 /// <summary>Budget use of one pool.</summary>
 public sealed record PoolUse(string Name, double Capacity, double Used, double UsedMedian, double UsedHigh)
@@ -56,7 +56,7 @@ public sealed record SelectionReport(IReadOnlyList<ChosenRun> Chosen, IReadOnlyL
                 gain = c.Value;
             }
 
-            chosen.Add(new ChosenRun(c.Id, o.Machine, o.Cost, o.Median, o.High, c.Value, gain, c.Must));
+            chosen.Add(new ChosenRun(c.Id, o.Cluster, o.Cost, o.Median, o.High, c.Value, gain, c.Must));
             used[o.Pool] += o.Cost;
             usedMedian[o.Pool] += o.Median;
             usedHigh[o.Pool] += o.High;
@@ -96,7 +96,7 @@ public sealed record SelectionReport(IReadOnlyList<ChosenRun> Chosen, IReadOnlyL
                 reason = "fits, but swapping it in lowers the objective";
             }
 
-            left.Add(new LeftOutRun(c.Id, option.Machine, option.Cost, gain, gain > 0 ? option.Cost / gain : double.PositiveInfinity, reason));
+            left.Add(new LeftOutRun(c.Id, option.Cluster, option.Cost, gain, gain > 0 ? option.Cost / gain : double.PositiveInfinity, reason));
         }
 
         var pools = problem.Pools.Select((p, i) => new PoolUse(p.Name, p.Capacity, used[i], usedMedian[i], usedHigh[i])).ToList();

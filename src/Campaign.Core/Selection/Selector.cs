@@ -175,7 +175,7 @@ public static class Selector
             return new SelectionResult(chosen, mustValue + solution.Value, mustValue + solution.UpperBound, solution.Method, solution.Value == solution.UpperBound ? 1 : 0);
         }
 
-        // Several machines: where a must run goes matters, so the search places must runs too (never leaving them out).
+        // Several clusters: where a must run goes matters, so the search places must runs too (never leaving them out).
         var original = problem.Pools.Select(p => p.Capacity).ToArray();
         var multi = MultiKnapsack.Solve(problem, Enumerable.Range(0, problem.Candidates.Count).ToArray(), original, problem.MaxRuns);
         return new SelectionResult(multi.Chosen, multi.Value, multi.UpperBound, multi.Method, multi.Value >= multi.UpperBound ? 1 : 0);

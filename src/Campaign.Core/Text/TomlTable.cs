@@ -34,6 +34,27 @@ public sealed class TomlTable
     /// <summary>Full dotted name of a key in this table, as used in messages.</summary>
     public string NameOf(string key) => Path.Length == 0 ? key : Path + "." + key;
 
+    /// <summary>
+    /// Gives the value written under <paramref name="from"/> the key <paramref name="to"/> (in place, keeping the
+    /// order); false when <paramref name="from"/> is absent or <paramref name="to"/> is written too.
+    /// </summary>
+    internal bool Rename(string from, string to)
+    {
+        if (!_entries.Remove(from, out var value) || _entries.ContainsKey(to))
+        {
+            if (value is not null)
+            {
+                _entries[from] = value;
+            }
+
+            return false;
+        }
+
+        _entries[to] = value;
+        _order[_order.IndexOf(from)] = to;
+        return true;
+    }
+
     internal bool TryAdd(string key, TomlValue value)
     {
         if (!_entries.TryAdd(key, value))

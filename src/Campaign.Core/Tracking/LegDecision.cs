@@ -14,7 +14,7 @@ public enum NextStep
 }
 
 /// <summary>How a leg ended, as the tracker sees it.</summary>
-/// <param name="Ending">"succeeded", "out_of_time", "interrupted" (by the machine), "crashed", "stopped",
+/// <param name="Ending">"succeeded", "out_of_time", "interrupted" (by the cluster), "crashed", "stopped",
 /// "stopped_for_stall", "vanished", or "too_short" (ended by the warning
 /// signal before the code made any progress: the leg did not leave the code time to start).</param>
 /// <param name="ProgressBefore">Simulated time when the leg was submitted.</param>
@@ -76,7 +76,7 @@ public static class LegDecision
         {
             // A leg that ended cleanly or ran into its wall time without any progress did nothing: it counts as a
             // failure without progress (else a code that never advances would be resubmitted for ever). The
-            // interruptions of the machine (pre-emption, node failure) and the stall rule's own cancel do not.
+            // interruptions of the cluster (pre-emption, node failure) and the stall rule's own cancel do not.
             if (progressed || end.Ending is not ("succeeded" or "out_of_time"))
             {
                 return (NextStep.Continue, $"leg {Words(end.Ending)}; continue from the newest checkpoint", 0, progressed ? 0 : end.FailuresWithoutProgress);

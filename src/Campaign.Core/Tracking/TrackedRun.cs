@@ -22,12 +22,12 @@ public sealed record RunTransition(string RunId, RunState? From, RunState To, st
 /// </summary>
 public sealed class TrackedRun
 {
-    private TrackedRun(string runId, string configId, int level, string machine, int cores, string folder, double targetLength, BinaryConfiguration configuration, long position, bool rehearsal, DateTimeOffset createdAt)
+    private TrackedRun(string runId, string configId, int level, string cluster, int cores, string folder, double targetLength, BinaryConfiguration configuration, long position, bool rehearsal, DateTimeOffset createdAt)
     {
         RunId = runId;
         ConfigId = configId;
         Level = level;
-        Machine = machine;
+        Cluster = cluster;
         Cores = cores;
         Folder = folder;
         TargetLength = targetLength;
@@ -47,8 +47,8 @@ public sealed class TrackedRun
     /// <summary>Resolution level.</summary>
     public int Level { get; }
 
-    /// <summary>Machine it runs on.</summary>
-    public string Machine { get; }
+    /// <summary>Cluster it runs on.</summary>
+    public string Cluster { get; }
 
     /// <summary>Cores per job.</summary>
     public int Cores { get; }
@@ -108,18 +108,18 @@ public sealed class TrackedRun
     public DateTimeOffset? FinishedAt { get; private set; }
 
     /// <summary>A new run, planned, with its first transition.</summary>
-    public static (TrackedRun Run, RunTransition Added) Adopt(string runId, string configId, int level, string machine, int cores, string folder, double targetLength, BinaryConfiguration configuration, long position, bool rehearsal, DateTimeOffset at)
+    public static (TrackedRun Run, RunTransition Added) Adopt(string runId, string configId, int level, string cluster, int cores, string folder, double targetLength, BinaryConfiguration configuration, long position, bool rehearsal, DateTimeOffset at)
     {
-        var run = new TrackedRun(runId, configId, level, machine, cores, folder, targetLength, configuration, position, rehearsal, at);
+        var run = new TrackedRun(runId, configId, level, cluster, cores, folder, targetLength, configuration, position, rehearsal, at);
         return (run, new RunTransition(runId, null, RunState.Planned, "added from the plan", at));
     }
 
     /// <summary>A run as stored (the store's mapping; no transition).</summary>
     public static TrackedRun Restore(
-        string runId, string configId, int level, string machine, int cores, string folder, double targetLength, BinaryConfiguration configuration, long position, bool rehearsal, DateTimeOffset createdAt,
+        string runId, string configId, int level, string cluster, int cores, string folder, double targetLength, BinaryConfiguration configuration, long position, bool rehearsal, DateTimeOffset createdAt,
         RunState state, string reason, int failuresWithProgress, int failuresWithoutProgress, int stallRestarts, int shortLegs, double progress, DateTimeOffset? progressAt, double? norm, string? checkpoint,
         DateTimeOffset updatedAt, DateTimeOffset? finishedAt) =>
-        new(runId, configId, level, machine, cores, folder, targetLength, configuration, position, rehearsal, createdAt)
+        new(runId, configId, level, cluster, cores, folder, targetLength, configuration, position, rehearsal, createdAt)
         {
             State = state,
             Reason = reason,
@@ -139,7 +139,7 @@ public sealed class TrackedRun
     public double DoneFraction => TargetLength > 0 ? Math.Clamp(Progress / TargetLength, 0, 1) : 0;
 
     /// <summary>The read-only view the rest of the campaign uses.</summary>
-    public RunRecord ToRecord() => new(RunId, ConfigId, Level, Machine, Cores, Configuration, TargetLength, State, Reason, Rehearsal, Progress, FinishedAt);
+    public RunRecord ToRecord() => new(RunId, ConfigId, Level, Cluster, Cores, Configuration, TargetLength, State, Reason, Rehearsal, Progress, FinishedAt);
 
     /// <summary>A leg was submitted for it (a pre-queued one keeps the state): queued.</summary>
     public RunTransition Submitting(string why, bool prequeued, DateTimeOffset at) =>
@@ -191,7 +191,7 @@ public sealed class TrackedRun
         return Move(RunState.Failed, why, why, at);
     }
 
-    /// <summary>Puts the run back as it was before a submission that never reached a broken machine.</summary>
+    /// <summary>Puts the run back as it was before a submission that never reached a broken cluster.</summary>
     public RunTransition Restore(RunState state, string reason, string why, DateTimeOffset at) => Move(state, reason, why, at);
 
     /// <summary>

@@ -14,7 +14,7 @@ public sealed record TrackingSettings
     /// <summary>The batch script run for every leg (relative to the workspace).</summary>
     public string Script { get; init; } = "run-leg.sh";
 
-    /// <summary>Wall time asked for each leg, in minutes; null: the machine's wall-time limit.</summary>
+    /// <summary>Wall time asked for each leg, in minutes; null: the cluster's wall-time limit.</summary>
     public double? LegMinutes { get; init; }
 
     /// <summary>Warning signal sent before the limit so the job can checkpoint (empty: none).</summary>

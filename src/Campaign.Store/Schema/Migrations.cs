@@ -281,6 +281,15 @@ public static class Migrations
                   AND NOT EXISTS (SELECT 1 FROM run_logs o WHERE o.run_id = (SELECT new_id FROM renamed WHERE old_id = run_logs.run_id));
             DROP TABLE renamed;
 
+            -- One word for the places runs run: clusters (the workstation profile is one too).
+            ALTER TABLE tracked_runs RENAME COLUMN machine TO cluster;
+            ALTER TABLE plan_entries RENAME COLUMN machine TO cluster;
+            ALTER TABLE run_logs RENAME COLUMN machine TO cluster;
+            ALTER TABLE machine_faults RENAME TO cluster_faults;
+            ALTER TABLE cluster_faults RENAME COLUMN machine TO cluster;
+            UPDATE plans SET carried_json = replace(carried_json, '"Machine":', '"Cluster":');
+            UPDATE cost_models SET model_json = replace(replace(replace(model_json, '"Machines":', '"Clusters":'), '"machine:', '"cluster:'), '+machine"', '+cluster"');
+
             -- Campaign's own job states (the batch system's own word stays in native_state).
             UPDATE legs SET job_state = CASE job_state
                 WHEN 'Pending' THEN 'waiting' WHEN 'Requeued' THEN 'waiting'

@@ -8,7 +8,7 @@ namespace Campaign.Tracking.Cycle;
 
 /// <summary>
 /// What the steps of one reconcile cycle share: the workspace, the batch systems, the clock, the runs as loaded at
-/// the start, and what the cycle has learnt (machines at fault or answering, messages, notices, counts).
+/// the start, and what the cycle has learnt (clusters at fault or answering, messages, notices, counts).
 /// </summary>
 internal sealed class CycleContext
 {
@@ -44,13 +44,13 @@ internal sealed class CycleContext
     /// <summary>Lines for the cycle's report.</summary>
     public List<string> Messages { get; } = new();
 
-    /// <summary>Batch-system queries made, per machine.</summary>
+    /// <summary>Batch-system queries made, per cluster.</summary>
     public Dictionary<string, int> Queries { get; } = new(StringComparer.Ordinal);
 
-    /// <summary>Machines whose batch system failed this cycle, with what failed.</summary>
+    /// <summary>Clusters whose batch system failed this cycle, with what failed.</summary>
     public Dictionary<string, string> Faults { get; } = new(StringComparer.Ordinal);
 
-    /// <summary>Machines whose batch system answered this cycle.</summary>
+    /// <summary>Clusters whose batch system answered this cycle.</summary>
     public HashSet<string> Answered { get; } = new(StringComparer.Ordinal);
 
     public int Submitted { get; set; }
@@ -61,8 +61,8 @@ internal sealed class CycleContext
 
     public int Held { get; set; }
 
-    public IBatchSystem Batch(string machine) =>
-        BatchSystems.TryGetValue(machine, out var batch) ? batch : throw new InvalidOperationException($"no batch system for machine {machine}");
+    public IBatchSystem Batch(string cluster) =>
+        BatchSystems.TryGetValue(cluster, out var batch) ? batch : throw new InvalidOperationException($"no batch system for cluster {cluster}");
 
     public RunFolder Folder(TrackedRun run) => new(Path.Combine(Workspace.Root, run.Folder), Settings);
 
@@ -88,30 +88,30 @@ internal sealed class CycleContext
     }
 
     /// <summary>
-    /// Runs a batch-system call; on a batch-system error the machine is at fault for this cycle (nothing is
+    /// Runs a batch-system call; on a batch-system error the cluster is at fault for this cycle (nothing is
     /// concluded about its runs) and false is returned.
     /// </summary>
-    public async Task<bool> Guarded(string machine, string what, Func<Task> call)
+    public async Task<bool> Guarded(string cluster, string what, Func<Task> call)
     {
         try
         {
             await call().ConfigureAwait(false);
-            Answered.Add(machine);
+            Answered.Add(cluster);
             return true;
         }
         catch (BatchSystemException e)
         {
-            MachineFault(machine, what, e);
+            ClusterFault(cluster, what, e);
             return false;
         }
     }
 
-    /// <summary>Notes that <paramref name="machine"/> failed this cycle: one message per machine; the whole text goes to the event log.</summary>
-    public void MachineFault(string machine, string what, BatchSystemException e)
+    /// <summary>Notes that <paramref name="cluster"/> failed this cycle: one message per cluster; the whole text goes to the event log.</summary>
+    public void ClusterFault(string cluster, string what, BatchSystemException e)
     {
-        if (Faults.TryAdd(machine, $"while {what}: {e.Message}"))
+        if (Faults.TryAdd(cluster, $"while {what}: {e.Message}"))
         {
-            Messages.Add($"{machine}: unreachable ({BatchErrorText.FirstLine(e.Message)}); its runs are left as they were; tried again next cycle");
+            Messages.Add($"{cluster}: unreachable ({BatchErrorText.FirstLine(e.Message)}); its runs are left as they were; tried again next cycle");
         }
     }
 
@@ -120,6 +120,6 @@ internal sealed class CycleContext
     {
         leg.CancelFor(reason);
         Commit(tx => TrackingStore.Save(Db, tx, leg));
-        await Batch(run.Machine).CancelAsync(leg.JobId!, cancellationToken).ConfigureAwait(false);
+        await Batch(run.Cluster).CancelAsync(leg.JobId!, cancellationToken).ConfigureAwait(false);
     }
 }

@@ -14,7 +14,7 @@ internal static class EndLegs
 {
     public static async Task EndAsync(CycleContext c, TrackedRun run, JobLeg leg, JobStatus status, CancellationToken cancellationToken)
     {
-        var profile = c.Workspace.Machine(run.Machine);
+        var profile = c.Workspace.Cluster(run.Cluster);
         var charged = status.Elapsed is { } e
             ? profile.ChargedCoreHours(status.ChargedCores ?? run.Cores, e.TotalHours)
             : leg.WorstCase; // no elapsed time known: charge the worst case rather than nothing
@@ -104,7 +104,7 @@ internal static class EndLegs
             run.Configuration,
             run.Level,
             run.Cores,
-            run.Machine,
+            run.Cluster,
             Math.Max(wallHours, 1e-9),
             RunOutcome.Completed,
             legs.Sum(s => s.Charged ?? 0),

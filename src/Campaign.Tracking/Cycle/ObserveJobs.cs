@@ -6,7 +6,7 @@ using Campaign.Store;
 namespace Campaign.Tracking.Cycle;
 
 /// <summary>
-/// Step 2: one query per machine for all its submitted legs; a leg still alive updates its run (queued or
+/// Step 2: one query per cluster for all its submitted legs; a leg still alive updates its run (queued or
 /// running, the stall clock starting when it starts); a leg that is over is ended and charged
 /// (<see cref="EndLegs"/>). A state the adapter does not know is waited on, never acted on.
 /// </summary>
@@ -15,7 +15,7 @@ internal static class ObserveJobs
     public static async Task RunAsync(CycleContext c, CancellationToken cancellationToken)
     {
         var submitted = c.OpenLegs().Where(s => s.Phase == LegPhase.Submitted).ToList();
-        foreach (var group in submitted.GroupBy(s => c.Runs[s.RunId].Machine).Where(g => !c.Faults.ContainsKey(g.Key)))
+        foreach (var group in submitted.GroupBy(s => c.Runs[s.RunId].Cluster).Where(g => !c.Faults.ContainsKey(g.Key)))
         {
             var batch = c.Batch(group.Key);
             IReadOnlyDictionary<string, JobStatus>? statuses = null;

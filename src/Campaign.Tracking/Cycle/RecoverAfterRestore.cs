@@ -7,9 +7,9 @@ namespace Campaign.Tracking.Cycle;
 /// <summary>
 /// Step 0, once after a backup is restored: the workspace may have submitted legs after the backup was taken,
 /// and the restored database does not know them. Before anything is submitted, each unfinished run's next job
-/// names (leg n + 1, n + 2, ...) are looked up in its machine's queue; every job found is ours (the name
+/// names (leg n + 1, n + 2, ...) are looked up in its cluster's queue; every job found is ours (the name
 /// carries the workspace id) and is recorded as a submitted leg, so it is observed, charged and never
-/// submitted twice. A machine that cannot be asked keeps the look-up pending for the next cycle.
+/// submitted twice. A cluster that cannot be asked keeps the look-up pending for the next cycle.
 /// </summary>
 internal static class RecoverAfterRestore
 {
@@ -29,12 +29,12 @@ internal static class RecoverAfterRestore
         var found = 0;
         foreach (var run in c.Runs.Values.Where(r => r.State is not (RunState.Finished or RunState.Failed)).OrderBy(r => r.Position))
         {
-            if (c.Faults.ContainsKey(run.Machine))
+            if (c.Faults.ContainsKey(run.Cluster))
             {
                 continue;
             }
 
-            var profile = c.Workspace.Machine(run.Machine);
+            var profile = c.Workspace.Cluster(run.Cluster);
             var wall = TimeSpan.FromHours(c.Settings.LegMinutes is { } minutes ? minutes / 60 : profile.WallLimitHours);
             for (var number = last.GetValueOrDefault(run.RunId) + 1; number <= last.GetValueOrDefault(run.RunId) + MaximumPerRun; number++)
             {
@@ -46,7 +46,7 @@ internal static class RecoverAfterRestore
                 var name = names[0];
                 foreach (var candidate in names)
                 {
-                    if (!await c.Guarded(run.Machine, $"looking up {candidate} after a restore", async () => id = await c.Batch(run.Machine).FindAsync(candidate, c.Folder(run).Path, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
+                    if (!await c.Guarded(run.Cluster, $"looking up {candidate} after a restore", async () => id = await c.Batch(run.Cluster).FindAsync(candidate, c.Folder(run).Path, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
                     {
                         break;
                     }

@@ -15,13 +15,13 @@ internal static class RecoverIntents
         foreach (var leg in c.OpenLegs().Where(s => s.Phase == Core.Lifecycle.LegPhase.Intent))
         {
             var run = c.Runs[leg.RunId];
-            if (c.Faults.ContainsKey(run.Machine))
+            if (c.Faults.ContainsKey(run.Cluster))
             {
                 continue;
             }
 
             string? id = null;
-            if (!await c.Guarded(run.Machine, "looking up an unconfirmed submission", async () => id = await c.Batch(run.Machine).FindAsync(leg.JobName, c.Folder(run).Path, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
+            if (!await c.Guarded(run.Cluster, "looking up an unconfirmed submission", async () => id = await c.Batch(run.Cluster).FindAsync(leg.JobName, c.Folder(run).Path, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
             {
                 continue;
             }
@@ -43,7 +43,7 @@ internal static class RecoverIntents
             });
             if (id is not null && settled)
             {
-                await c.Guarded(run.Machine, $"cancelling job {id} of {run.State.Name()} run {run.RunId}", () => c.Cancel(run, leg, "superfluous", cancellationToken)).ConfigureAwait(false);
+                await c.Guarded(run.Cluster, $"cancelling job {id} of {run.State.Name()} run {run.RunId}", () => c.Cancel(run, leg, "superfluous", cancellationToken)).ConfigureAwait(false);
             }
         }
     }

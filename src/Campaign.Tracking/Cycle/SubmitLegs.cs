@@ -11,7 +11,7 @@ namespace Campaign.Tracking.Cycle;
 /// Step 5: every run that needs its next leg (or a pre-queued one) gets it, oldest plan position first, if the
 /// budget rule allows its worst case (<see cref="CampaignLedger.Allows"/>); else it waits with the reason. A
 /// submission records its intent first and its job id after. A refusal of the request holds the run; a failure of
-/// the machine leaves the run as it was and skips the machine for the rest of the cycle.
+/// the cluster leaves the run as it was and skips the cluster for the rest of the cycle.
 /// </summary>
 internal static class SubmitLegs
 {
@@ -20,11 +20,11 @@ internal static class SubmitLegs
         var legs = TrackingStore.Legs(c.Db);
         var openByRun = legs.Where(s => s.IsOpen).ToLookup(s => s.RunId, StringComparer.Ordinal);
         var lastNumber = legs.GroupBy(s => s.RunId, StringComparer.Ordinal).ToDictionary(g => g.Key, g => g.Max(s => s.Number), StringComparer.Ordinal);
-        var ledger = new CampaignLedger(c.Workspace.Config.Allocations, c.Workspace.Machines, TrackingStore.Charges(c.Db));
+        var ledger = new CampaignLedger(c.Workspace.Config.Allocations, c.Workspace.Clusters, TrackingStore.Charges(c.Db));
         var today = DateOnly.FromDateTime(c.Now.UtcDateTime);
         foreach (var run in c.Runs.Values.OrderBy(r => r.Position).ToList())
         {
-            if (c.Faults.ContainsKey(run.Machine))
+            if (c.Faults.ContainsKey(run.Cluster))
             {
                 continue;
             }
@@ -37,10 +37,10 @@ internal static class SubmitLegs
                 continue;
             }
 
-            var profile = c.Workspace.Machine(run.Machine);
+            var profile = c.Workspace.Cluster(run.Cluster);
             var wallHours = c.Settings.LegMinutes is { } minutes ? minutes / 60 : profile.WallLimitHours;
             var worst = profile.ChargedCoreHours(run.Cores, wallHours);
-            var verdict = ledger.Allows(run.Machine, worst, today, c.Settings.ReserveCoreHours);
+            var verdict = ledger.Allows(run.Cluster, worst, today, c.Settings.ReserveCoreHours);
             if (!verdict.Allowed)
             {
                 if (needsFirst && run.WaitForBudget(verdict.Why, c.Now) is { } waiting)
@@ -56,7 +56,7 @@ internal static class SubmitLegs
             {
                 if (await Submit(c, run, profile, wallHours, worst, number, prequeue ? open[0].JobId : null, cancellationToken).ConfigureAwait(false))
                 {
-                    ledger.Commit(run.Machine, worst);
+                    ledger.Commit(run.Cluster, worst);
                 }
             }
             catch (Exception e) when (e is Microsoft.Data.Sqlite.SqliteException { SqliteErrorCode: 19 } or DirectoryNotFoundException or UnauthorizedAccessException)
@@ -69,7 +69,7 @@ internal static class SubmitLegs
     }
 
     /// <summary>Submits one leg (intent first, job id after); returns true when its worst case is now committed.</summary>
-    private static async Task<bool> Submit(CycleContext c, TrackedRun run, MachineProfile profile, double wallHours, double worst, int number, string? afterAny, CancellationToken cancellationToken)
+    private static async Task<bool> Submit(CycleContext c, TrackedRun run, ClusterProfile profile, double wallHours, double worst, int number, string? afterAny, CancellationToken cancellationToken)
     {
         var folder = c.Folder(run);
         var (checkpoint, skipped) = Checkpoints.NewestValid(folder.CheckpointFiles(), c.Settings.CheckpointMarker.Length > 0, TimeSpan.FromSeconds(c.Settings.CheckpointSettleSeconds), c.Now);
@@ -80,6 +80,7 @@ internal static class SubmitLegs
             ["CAMPAIGN_RUN_ID"] = run.RunId,
             ["CAMPAIGN_RUN_DIR"] = folder.Path,
             ["CAMPAIGN_LEG"] = number.ToString(CultureInfo.InvariantCulture),
+            ["CAMPAIGN_" + "SEGMENT"] = number.ToString(CultureInfo.InvariantCulture), // for job scripts written before schema 9
         };
         if (afterAny is not null)
         {
@@ -114,13 +115,13 @@ internal static class SubmitLegs
         string id;
         try
         {
-            id = await c.Batch(run.Machine).SubmitAsync(request, cancellationToken).ConfigureAwait(false);
-            c.Answered.Add(run.Machine);
+            id = await c.Batch(run.Cluster).SubmitAsync(request, cancellationToken).ConfigureAwait(false);
+            c.Answered.Add(run.Cluster);
         }
         catch (BatchSystemException e) when (e.Kind == BatchErrorKind.Rejected)
         {
             // The batch system refused this request: the run's fault. Held with the first line; the whole text in the event.
-            c.Answered.Add(run.Machine);
+            c.Answered.Add(run.Cluster);
             c.Commit(tx =>
             {
                 TrackingStore.DeleteIntent(c.Db, tx, leg.Id);
@@ -131,19 +132,19 @@ internal static class SubmitLegs
         }
         catch (BatchSystemException e) when (e.Kind == BatchErrorKind.Permanent)
         {
-            // The machine's fault (its commands or configuration): the run is left as it was before this cycle.
+            // The cluster's fault (its commands or configuration): the run is left as it was before this cycle.
             c.Commit(tx =>
             {
                 TrackingStore.DeleteIntent(c.Db, tx, leg.Id);
-                c.Save(tx, run, run.Restore(before.State, before.Reason, $"{run.Machine} unreachable: leg {number} not submitted; left as it was", c.Now));
+                c.Save(tx, run, run.Restore(before.State, before.Reason, $"{run.Cluster} unreachable: leg {number} not submitted; left as it was", c.Now));
             });
-            c.MachineFault(run.Machine, $"submitting {name}", e);
+            c.ClusterFault(run.Cluster, $"submitting {name}", e);
             return false;
         }
         catch (BatchSystemException e)
         {
             // It may or may not have reached the batch system: the intent stays, and the next cycle looks it up by name.
-            c.MachineFault(run.Machine, $"submitting {name} (not confirmed: looked up by name next cycle)", e);
+            c.ClusterFault(run.Cluster, $"submitting {name} (not confirmed: looked up by name next cycle)", e);
             return true;
         }
 

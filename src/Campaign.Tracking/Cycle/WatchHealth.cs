@@ -17,14 +17,14 @@ internal static class WatchHealth
             .Where(s => s.Phase == LegPhase.Submitted && s.JobState == JobState.Working.Name())
             .GroupBy(s => s.RunId, StringComparer.Ordinal)
             .ToDictionary(g => g.Key, g => g.First(), StringComparer.Ordinal);
-        foreach (var run in c.Runs.Values.Where(r => r.State == RunState.Running && !c.Faults.ContainsKey(r.Machine)).ToList())
+        foreach (var run in c.Runs.Values.Where(r => r.State == RunState.Running && !c.Faults.ContainsKey(r.Cluster)).ToList())
         {
             if (running.GetValueOrDefault(run.RunId) is not { CancelReason: null } leg)
             {
                 continue;
             }
 
-            await c.Guarded(run.Machine, $"acting on the health of {run.RunId}", () => Watch(c, run, leg, cancellationToken)).ConfigureAwait(false);
+            await c.Guarded(run.Cluster, $"acting on the health of {run.RunId}", () => Watch(c, run, leg, cancellationToken)).ConfigureAwait(false);
         }
     }
 

@@ -6,10 +6,10 @@ using Campaign.Core.Selection;
 
 namespace Campaign.App.Tests.Support;
 
-/// <summary>A workspace with the demo group's config, machine profiles, run logs and small candidate list (invented demo data).</summary>
+/// <summary>A workspace with the demo group's config, cluster profiles, run logs and small candidate list (invented demo data).</summary>
 public static class TestWorkspace
 {
-    /// <summary>Creates it in <paramref name="root"/>, with production-like tracking (legs as long as each machine allows).</summary>
+    /// <summary>Creates it in <paramref name="root"/>, with production-like tracking (legs as long as each cluster allows).</summary>
     public static void Create(string root, TimeProvider clock, string extraTracking = "")
     {
         var demo = Path.Combine(RepositoryRoot.Path, "demo-campaign");

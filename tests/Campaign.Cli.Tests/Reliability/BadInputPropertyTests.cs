@@ -24,7 +24,7 @@ public sealed class BadInputWorkspace : IDisposable
     public string Fingerprint()
     {
         var files = new[] { "campaign.db", "campaign.db-wal", "campaign.toml" }.Select(f => Ws(f))
-            .Concat(Directory.EnumerateFiles(Ws("machines")).Order(StringComparer.Ordinal))
+            .Concat(Directory.EnumerateFiles(Ws("clusters")).Order(StringComparer.Ordinal))
             .Where(File.Exists);
         return string.Join(";", files.Select(f => Path.GetFileName(f) + "=" + Convert.ToHexString(SHA256.HashData(File.ReadAllBytes(f)))));
     }
@@ -33,7 +33,7 @@ public sealed class BadInputWorkspace : IDisposable
 }
 
 /// <summary>
-/// Property-based tests (FsCheck, seeded): malformed run logs, candidate files, workspace configs, machine
+/// Property-based tests (FsCheck, seeded): malformed run logs, candidate files, workspace configs, cluster
 /// profiles and command lines. Every case must end with a located error and a non-zero exit code, and leave the
 /// stored data byte-for-byte unchanged; harmless variations (a byte-order mark, CRLF line ends) must not matter.
 /// </summary>
@@ -284,7 +284,7 @@ public sealed class BadInputPropertyTests(BadInputWorkspace workspace, ITestOutp
     {
         var path = workspace.Ws("campaign.toml");
         var valid = File.ReadAllText(path);
-        var cases = BadToml(valid.Replace("\r\n", "\n", StringComparison.Ordinal), new[] { "name", "machines", "machine", "amount", "start", "end" });
+        var cases = BadToml(valid.Replace("\r\n", "\n", StringComparison.Ordinal), new[] { "name", "clusters", "cluster", "amount", "start", "end" });
         try
         {
             // The config is in the workspace: the case is written there, and "unchanged" means the database and profiles.
@@ -320,11 +320,11 @@ public sealed class BadInputPropertyTests(BadInputWorkspace workspace, ITestOutp
     private string DatabaseAndProfiles() => string.Join(";", workspace.Fingerprint().Split(';').Where(p => !p.StartsWith("campaign.toml", StringComparison.Ordinal)));
 
     [Fact]
-    public void Malformed_machine_profiles_are_refused_with_their_location()
+    public void Malformed_cluster_profiles_are_refused_with_their_location()
     {
         var valid = File.ReadAllText(Path.Combine(RepositoryRoot.Path, "cluster-profiles", "halyard.toml"));
         var cases = BadToml(valid, new[] { "name", "batch_system", "cores_per_node", "wall_limit_hours", "charge_whole_nodes" });
-        Check(cases, "halyard.toml", path => CliRun.Of(workspace.Folder.Path, "--dir", "ws", "machines", "check", path), seed: 15);
+        Check(cases, "halyard.toml", path => CliRun.Of(workspace.Folder.Path, "--dir", "ws", "clusters", "check", path), seed: 15);
     }
 
     [Fact]

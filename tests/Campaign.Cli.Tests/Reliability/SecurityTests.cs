@@ -88,6 +88,11 @@ public sealed class SecurityTests : IDisposable
     public void The_workspace_database_and_config_are_readable_by_their_owner_only()
     {
         Assert.Equal(0, CliRun.Of(_folder.Path, "init", "ws").ExitCode);
+        foreach (var profile in Directory.GetFiles(Path.Combine(RepositoryRoot.Path, "cluster-profiles"), "*.toml"))
+        {
+            File.Copy(profile, Path.Combine(_folder.Path, "ws", "clusters", Path.GetFileName(profile)), overwrite: true); // the clusters the demo's logs ran on
+        }
+
         Assert.Equal(0, CliRun.Of(_folder.Path, "--dir", "ws", "logs", "import", Path.Combine(RepositoryRoot.Path, "demo-campaign", "run-logs.csv")).ExitCode);
         const UnixFileMode ownerOnly = UnixFileMode.UserRead | UnixFileMode.UserWrite;
         foreach (var file in new[] { "campaign.toml", "campaign.db" })

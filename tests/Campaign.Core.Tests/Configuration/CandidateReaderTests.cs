@@ -6,11 +6,11 @@ namespace Campaign.Core.Tests.Configuration;
 
 public class CandidateReaderTests
 {
-    private static readonly string[] Machines = { "alpha", "beta" };
+    private static readonly string[] Clusters = { "alpha", "beta" };
     private static readonly RunDefaults Defaults = new(new[] { 1, 2 }, 32);
 
     private static IReadOnlyList<Candidate> Read(string text) =>
-        CandidateReader.Read(text, "c.csv", new LengthSettings(), Defaults, "alpha", Machines);
+        CandidateReader.Read(text, "c.csv", new LengthSettings(), Defaults, "alpha", Clusters);
 
     [Fact]
     public void Rows_take_defaults_for_empty_cells()
@@ -19,11 +19,11 @@ public class CandidateReaderTests
         Assert.Equal(2, candidates.Count);
         Assert.Equal(new[] { 1, 2 }, candidates[0].Spec.Levels);
         Assert.Equal(32, candidates[0].Spec.Cores);
-        Assert.Equal("alpha", candidates[0].Machine);
+        Assert.Equal("alpha", candidates[0].Cluster);
         Assert.Equal(1, candidates[0].Value);
         Assert.False(candidates[0].Must);
         Assert.Equal(new[] { 3, 4 }, candidates[1].Spec.Levels);
-        Assert.Equal("beta", candidates[1].Machine);
+        Assert.Equal("beta", candidates[1].Cluster);
         Assert.True(candidates[1].Must);
         Assert.Equal(2.5, candidates[1].Value);
     }
@@ -40,7 +40,7 @@ public class CandidateReaderTests
                 "c.csv:3:3: chi1z = 1.2: expected a finite number from -1 to 1",
                 "c.csv:4:4: omega0 = abc: expected a finite number written with '.' as the decimal point",
                 "c.csv:5:5: levels = 1;x: expected resolution levels as integers separated by ';', e.g. 2;3;4",
-                "c.csv:6:7: cluster = gamma: expected machines with a profile, separated by ';': alpha, beta (\"gamma\" has none)",
+                "c.csv:6:7: cluster = gamma: expected clusters with a profile, separated by ';': alpha, beta (\"gamma\" has none)",
                 "c.csv:7:1: id = a: expected a unique id; it is already used on line 2",
                 "c.csv:7:6: cores = -3: expected an integer from 1 to 10000000",
             },

@@ -40,7 +40,7 @@ public class RunLogReaderTests
             {
                 "l.csv:2:2: q = 0.5: expected a finite number from 1 to 1000; q is m1/m2 with the heavier hole first; swap the holes: q = 2 and exchange chi1 and chi2",
                 "l.csv:3:7: cores = 0: expected an integer from 1 to 10000000",
-                "l.csv:3:8: cluster = gamma: expected a machine with a profile: alpha, beta",
+                "l.csv:3:8: cluster = gamma: expected a cluster with a profile: alpha, beta",
                 "l.csv:3:9: wall_hours = -1: expected a number greater than 0 and at most 10000000",
                 "l.csv:3:10: outcome = done: expected completed, failed or partial",
                 "l.csv:4:1: run_id = r1: expected a unique run id; it is already used on line 2",

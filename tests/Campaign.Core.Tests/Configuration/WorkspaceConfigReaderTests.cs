@@ -10,11 +10,11 @@ public class WorkspaceConfigReaderTests
     private const string Valid = """
         [campaign]
         name = "Test campaign"
-        machines = ["alpha", "beta"]
-        default_machine = "beta"
+        clusters = ["alpha", "beta"]
+        default_cluster = "beta"
 
         [[allocation]]
-        machine = "alpha"
+        cluster = "alpha"
         amount = 1_000_000
         unit = "core-hours"
         start = 2027-01-01
@@ -31,7 +31,7 @@ public class WorkspaceConfigReaderTests
         amount = 500_000
 
         [[allocation]]
-        machine = "beta"
+        cluster = "beta"
         amount = 2000
         unit = "node-hours"
         start = "2027-01-01"
@@ -76,8 +76,8 @@ public class WorkspaceConfigReaderTests
     {
         var config = WorkspaceConfigReader.Read(Valid, "c.toml", Known);
         Assert.Equal("Test campaign", config.Name);
-        Assert.Equal(new[] { "alpha", "beta" }, config.Machines);
-        Assert.Equal("beta", config.DefaultMachine);
+        Assert.Equal(new[] { "alpha", "beta" }, config.Clusters);
+        Assert.Equal("beta", config.DefaultCluster);
         Assert.Equal(2, config.Allocations.Count);
         Assert.Equal(2, config.Allocations[0].Windows.Count);
         Assert.Equal(AllocationUnit.NodeHours, config.Allocations[1].Unit);
@@ -89,8 +89,8 @@ public class WorkspaceConfigReaderTests
     }
 
     [Theory]
-    [InlineData("machines = [\"alpha\", \"beta\"]", "machines = [\"alpha\", \"beta\", \"gamma\"]", "c.toml:3:12: campaign.machines = [\"alpha\", \"beta\", \"gamma\"]: expected machine names with a profile; \"gamma\" has none (known: alpha, beta)")]
-    [InlineData("default_machine = \"beta\"", "default_machine = \"zeta\"", "c.toml:4:19: campaign.default_machine = \"zeta\": expected one of campaign.machines: alpha, beta")]
+    [InlineData("clusters = [\"alpha\", \"beta\"]", "clusters = [\"alpha\", \"beta\", \"gamma\"]", "c.toml:3:12: campaign.clusters = [\"alpha\", \"beta\", \"gamma\"]: expected cluster names with a profile; \"gamma\" has none (known: alpha, beta)")]
+    [InlineData("default_cluster = \"beta\"", "default_cluster = \"zeta\"", "c.toml:4:19: campaign.default_cluster = \"zeta\": expected one of campaign.clusters: alpha, beta")]
     [InlineData("amount = 2000", "amount = -5", "c.toml:25:10: allocation.amount = -5: expected a number greater than 0 and at most 1000000000000")]
     [InlineData("unit = \"node-hours\"", "unit = \"hours\"", "c.toml:26:8: allocation.unit = \"hours\": expected one of \"core-hours\", \"node-hours\"")]
     [InlineData("end = 2027-06-30\n\n[defaults]", "end = 2026-06-30\n\n[defaults]", "c.toml:28:7: allocation.end = 2026-06-30: expected a date after start = 2027-01-01")]

@@ -30,7 +30,7 @@ public class SyntheticWorldTests
         var cost = new List<double>();
         for (var i = 0; i < count; i++)
         {
-            var machine = random.Next(2) == 0 ? ("m1", 1.0) : ("m2", 0.7);
+            var cluster = random.Next(2) == 0 ? ("m1", 1.0) : ("m2", 0.7);
             var o = new CostObservation(
                 "run" + i,
                 Math.Log(2000 + 18000 * random.NextDouble()),
@@ -38,8 +38,8 @@ public class SyntheticWorldTests
                 -Math.Log(1 - 0.95 * random.NextDouble()),
                 1 + random.Next(3),
                 Math.Log(32 << random.Next(5)),
-                machine.Item1,
-                Math.Log(machine.Item2));
+                cluster.Item1,
+                Math.Log(cluster.Item2));
             var logCost = Law.Sum(term => term.Value * FeatureSet.Value(term.Key, o)) - o.LogSpeed + noise.Sample();
             data.Add(o);
             cost.Add(Math.Exp(logCost));
@@ -161,7 +161,7 @@ public class SyntheticWorldTests
     [Fact]
     public void The_one_standard_error_rule_prefers_the_simpler_set_when_the_extra_terms_do_nothing()
     {
-        // A world where cores and machines have no effect: the set with ln_cores must not be chosen
+        // A world where cores and clusters have no effect: the set with ln_cores must not be chosen
         // unless it is better by more than one standard error.
         var (data, cost) = World(200, seed: 17);
         var adjusted = cost.Select((c, i) => c / Math.Exp(0.15 * data[i].LogCores)).ToList();

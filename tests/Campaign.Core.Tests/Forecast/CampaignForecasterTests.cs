@@ -7,20 +7,20 @@ public class CampaignForecasterTests
 {
     private static readonly DateTimeOffset Start = new(2027, 1, 1, 0, 0, 0, TimeSpan.Zero);
 
-    private static MachineProfile Machine(double waitMedian = 0, double waitP90 = 0, int running = 10, int queued = 10, double wall = 24) =>
+    private static ClusterProfile Cluster(double waitMedian = 0, double waitP90 = 0, int running = 10, int queued = 10, double wall = 24) =>
         new("m", "", BatchSystemKind.Slurm, 64, 256, wall, false, 1.0, 1.0, queued, running, waitMedian, waitP90);
 
     private static ForecastRun Run(string id, double coreHours, int cores = 1, double done = 0) => new(id, "m", cores, null, 0, coreHours, done, false);
 
-    private static ForecastResult Forecast(IReadOnlyList<ForecastRun> runs, MachineProfile machine, Allocation? allocation = null, double failure = 0, int replicas = 200, double already = 0) =>
-        CampaignForecaster.Run(runs, new Dictionary<string, ForecastMachine> { ["m"] = new(machine, allocation, already) }, null, Start,
+    private static ForecastResult Forecast(IReadOnlyList<ForecastRun> runs, ClusterProfile cluster, Allocation? allocation = null, double failure = 0, int replicas = 200, double already = 0) =>
+        CampaignForecaster.Run(runs, new Dictionary<string, ForecastCluster> { ["m"] = new(cluster, allocation, already) }, null, Start,
             new ForecastOptions { Replicas = replicas, LegFailureProbability = failure, Seed = 7 });
 
     [Fact]
     public void Without_waits_or_failures_a_run_ends_after_exactly_its_wall_time_in_whole_legs()
     {
         // 100 core-hours on 1 core = 100 h; legs of 24 - 0.5 = 23.5 h: four full ones and one of 6 h.
-        var result = Forecast(new[] { Run("a", 100) }, Machine());
+        var result = Forecast(new[] { Run("a", 100) }, Cluster());
         Assert.Equal(Start.AddHours(100), result.Finish.P10);
         Assert.Equal(Start.AddHours(100), result.Finish.P90);
         Assert.Equal(5, result.Runs[0].MeanLegs, 12);
@@ -30,7 +30,7 @@ public class CampaignForecasterTests
     [Fact]
     public void A_run_half_done_needs_half_the_time()
     {
-        var result = Forecast(new[] { Run("a", 40, done: 0.5) }, Machine());
+        var result = Forecast(new[] { Run("a", 40, done: 0.5) }, Cluster());
         Assert.Equal(Start.AddHours(20), result.Finish.P50);
     }
 
@@ -38,8 +38,8 @@ public class CampaignForecasterTests
     public void The_running_job_limit_serialises_runs()
     {
         var runs = new[] { Run("a", 10), Run("b", 10), Run("c", 10) };
-        Assert.Equal(Start.AddHours(30), Forecast(runs, Machine(running: 1)).Finish.P50);
-        Assert.Equal(Start.AddHours(10), Forecast(runs, Machine(running: 3)).Finish.P50);
+        Assert.Equal(Start.AddHours(30), Forecast(runs, Cluster(running: 1)).Finish.P50);
+        Assert.Equal(Start.AddHours(10), Forecast(runs, Cluster(running: 3)).Finish.P50);
     }
 
     [Fact]
@@ -47,7 +47,7 @@ public class CampaignForecasterTests
     {
         // One single-leg run of 1 h after a log-normal wait with median 2 h and P90 8 h: the finish
         // percentiles are 3 h and 9 h (log-normal quantiles: median exp(mu), P90 exp(mu + 1.2816 sigma)).
-        var result = Forecast(new[] { Run("a", 1) }, Machine(waitMedian: 2, waitP90: 8), replicas: 20000);
+        var result = Forecast(new[] { Run("a", 1) }, Cluster(waitMedian: 2, waitP90: 8), replicas: 20000);
         Assert.Equal(3, (result.Finish.P50!.Value - Start).TotalHours, 0.15);
         Assert.Equal(9, (result.Finish.P90!.Value - Start).TotalHours, 0.5);
     }
@@ -57,7 +57,7 @@ public class CampaignForecasterTests
     {
         // Four full legs needed, each failing with p = 0.2: the expected number of legs is 4/(1 - p) = 5
         // (mean of a negative binomial count of trials).
-        var result = Forecast(new[] { Run("a", 94) }, Machine(), failure: 0.2, replicas: 20000);
+        var result = Forecast(new[] { Run("a", 94) }, Cluster(), failure: 0.2, replicas: 20000);
         Assert.Equal(5, result.Runs[0].MeanLegs, 0.05);
     }
 
@@ -65,7 +65,7 @@ public class CampaignForecasterTests
     public void A_plan_larger_than_the_allocation_does_not_fit_and_its_runs_are_late()
     {
         var allocation = new Allocation("m", 50, AllocationUnit.CoreHours, new DateOnly(2027, 1, 1), new DateOnly(2027, 12, 31), Array.Empty<AllocationWindow>());
-        var result = Forecast(new[] { Run("a", 100) }, Machine(), allocation);
+        var result = Forecast(new[] { Run("a", 100) }, Cluster(), allocation);
         Assert.Equal(0, result.ProbabilityFits);
         Assert.Equal(1, result.Runs[0].ProbabilityLate);
         Assert.Null(result.Finish.P50);
@@ -85,7 +85,7 @@ public class CampaignForecasterTests
         // 100 h on 1 core, legs of 23.5 h charged at worst 24 h. The first window (30 core-hours) takes the
         // first leg (0-23.5 h); a second would risk 23.5 + 24 > 30, so it waits for the second window (Jan 3,
         // hour 48), where the remaining 76.5 h run through: finish at 124.5 h. Charges land where legs end.
-        var result = Forecast(new[] { Run("a", 100) }, Machine(), allocation);
+        var result = Forecast(new[] { Run("a", 100) }, Cluster(), allocation);
         Assert.Equal(Start.AddHours(124.5), result.Finish.P50);
         Assert.Equal(23.5, result.Windows[0].MeanCharge, 9);
         Assert.Equal(0, result.Windows[0].ProbabilityOver);
@@ -105,7 +105,7 @@ public class CampaignForecasterTests
             new AllocationWindow(new DateOnly(2027, 7, 1), new DateOnly(2027, 12, 31), 40),
         };
         var allocation = new Allocation("m", 80, AllocationUnit.CoreHours, new DateOnly(2027, 1, 1), new DateOnly(2027, 12, 31), windows);
-        var result = Forecast(new[] { Run("a", 10), Run("b", 10) }, Machine(running: 2), allocation);
+        var result = Forecast(new[] { Run("a", 10), Run("b", 10) }, Cluster(running: 2), allocation);
         Assert.Equal(20, (result.Finish.P50!.Value - Start).TotalHours, 6); // waits for the end to within a few microseconds
         Assert.Equal(20, result.Windows[0].MeanCharge, 9);
     }
@@ -114,7 +114,7 @@ public class CampaignForecasterTests
     public void Nothing_runs_before_the_allocation_starts()
     {
         var allocation = new Allocation("m", 1000, AllocationUnit.CoreHours, new DateOnly(2027, 2, 1), new DateOnly(2027, 12, 31), Array.Empty<AllocationWindow>());
-        var result = Forecast(new[] { Run("a", 10) }, Machine(), allocation);
+        var result = Forecast(new[] { Run("a", 10) }, Cluster(), allocation);
         Assert.Equal(new DateTimeOffset(2027, 2, 1, 10, 0, 0, TimeSpan.Zero), result.Finish.P50);
     }
 
@@ -136,10 +136,10 @@ public class CampaignForecasterTests
     {
         var runs = new[] { Run("a", 50), Run("b", 70) };
         var recorder = new Recorder();
-        var machines = new Dictionary<string, ForecastMachine> { ["m"] = new(Machine(2, 8), null, 0) };
+        var clusters = new Dictionary<string, ForecastCluster> { ["m"] = new(Cluster(2, 8), null, 0) };
         var options = new ForecastOptions { Replicas = 500, Seed = 3 };
-        var with = CampaignForecaster.Run(runs, machines, null, Start, options, recorder);
-        var without = CampaignForecaster.Run(runs, machines, null, Start, options);
+        var with = CampaignForecaster.Run(runs, clusters, null, Start, options, recorder);
+        var without = CampaignForecaster.Run(runs, clusters, null, Start, options);
         Assert.Equal(1.0, recorder.Values.Max());
         Assert.Equal(without.Finish, with.Finish);
     }
@@ -147,12 +147,12 @@ public class CampaignForecasterTests
     [Fact]
     public void Measured_waits_replace_the_profile_once_there_are_enough()
     {
-        var profile = Machine(waitMedian: 2, waitP90: 8);
-        Assert.Equal((2.0, 8.0, "the profile"), new ForecastMachine(profile, null, 0, new double[] { 1, 1, 1, 1 }).QueueWait());
-        var measured = new ForecastMachine(profile, null, 0, new double[] { 0.5, 1, 1.5, 2, 2.5, 3, 3.5, 4, 4.5, 10 }).QueueWait();
+        var profile = Cluster(waitMedian: 2, waitP90: 8);
+        Assert.Equal((2.0, 8.0, "the profile"), new ForecastCluster(profile, null, 0, new double[] { 1, 1, 1, 1 }).QueueWait());
+        var measured = new ForecastCluster(profile, null, 0, new double[] { 0.5, 1, 1.5, 2, 2.5, 3, 3.5, 4, 4.5, 10 }).QueueWait();
         Assert.Equal((3.0, 10.0, "10 measured waits"), measured);
         // With measured waits of exactly 0 the runs start at once: the finish is the wall time alone.
-        var instant = CampaignForecaster.Run(new[] { Run("a", 10) }, new Dictionary<string, ForecastMachine> { ["m"] = new(profile, null, 0, new double[] { 0, 0, 0, 0, 0 }) }, null, Start, new ForecastOptions { Replicas = 50 });
+        var instant = CampaignForecaster.Run(new[] { Run("a", 10) }, new Dictionary<string, ForecastCluster> { ["m"] = new(profile, null, 0, new double[] { 0, 0, 0, 0, 0 }) }, null, Start, new ForecastOptions { Replicas = 50 });
         Assert.Equal(Start.AddHours(10), instant.Finish.P90);
     }
 }

@@ -6,8 +6,8 @@ namespace Campaign.Core.Tests.Lifecycle;
 /// <summary>The one budget rule of the cycle, the forecast and select (hand-computed sums; no outside source needed).</summary>
 public class CampaignLedgerTests
 {
-    private static readonly MachineProfile Box = new("box", "", BatchSystemKind.Slurm, 64, 256, 24, true, 1, 1, 30, 10, 2, 12);
-    private static readonly MachineProfile Desk = Box with { Name = "desk", BatchSystem = BatchSystemKind.Local };
+    private static readonly ClusterProfile Box = new("box", "", BatchSystemKind.Slurm, 64, 256, 24, true, 1, 1, 30, 10, 2, 12);
+    private static readonly ClusterProfile Desk = Box with { Name = "desk", BatchSystem = BatchSystemKind.Local };
 
     private static readonly Allocation Year = new("box", 10_000, AllocationUnit.CoreHours, new DateOnly(2027, 1, 1), new DateOnly(2027, 12, 31), new[]
     {
@@ -15,14 +15,14 @@ public class CampaignLedgerTests
         new AllocationWindow(new DateOnly(2027, 4, 1), new DateOnly(2027, 6, 30), 2_500),
     });
 
-    private static LegCharge Ended(string machine, int month, double charged) =>
-        new("r", machine, LegPhase.Ended, 999, charged, new DateTimeOffset(2027, month, 2, 0, 0, 0, TimeSpan.Zero), null, new DateTimeOffset(2027, month, 3, 0, 0, 0, TimeSpan.Zero));
+    private static LegCharge Ended(string cluster, int month, double charged) =>
+        new("r", cluster, LegPhase.Ended, 999, charged, new DateTimeOffset(2027, month, 2, 0, 0, 0, TimeSpan.Zero), null, new DateTimeOffset(2027, month, 3, 0, 0, 0, TimeSpan.Zero));
 
-    private static LegCharge Open(string machine, double worst) =>
-        new("r", machine, LegPhase.Submitted, worst, null, new DateTimeOffset(2027, 2, 1, 0, 0, 0, TimeSpan.Zero), null, null);
+    private static LegCharge Open(string cluster, double worst) =>
+        new("r", cluster, LegPhase.Submitted, worst, null, new DateTimeOffset(2027, 2, 1, 0, 0, 0, TimeSpan.Zero), null, null);
 
     private static CampaignLedger Ledger(params LegCharge[] legs) =>
-        new(new[] { Year }, new Dictionary<string, MachineProfile> { ["box"] = Box, ["desk"] = Desk }, legs);
+        new(new[] { Year }, new Dictionary<string, ClusterProfile> { ["box"] = Box, ["desk"] = Desk }, legs);
 
     [Fact]
     public void Spent_is_charged_by_the_day_legs_end_and_committed_is_the_open_worst_case()
@@ -54,7 +54,7 @@ public class CampaignLedgerTests
     }
 
     [Fact]
-    public void A_machine_without_allocations_is_not_guarded_and_a_day_outside_every_allocation_waits()
+    public void A_cluster_without_allocations_is_not_guarded_and_a_day_outside_every_allocation_waits()
     {
         var ledger = Ledger();
         Assert.True(ledger.Allows("desk", 1e9, new DateOnly(2027, 2, 1), 0).Allowed);

@@ -13,8 +13,8 @@ public class CampaignStandingTests
     private static PlanEntry Entry(string config, int level, double cost) =>
         new(Binary, new EstimateRow(config, level, "run", "box", 64, 1000, cost, cost, cost, cost, 10, 1, 10, cost, cost, 1, 1, "model", Array.Empty<string>(), 0.1, 30, 1), cost, 1000);
 
-    private static RunRecord Run(string id, RunState state, double progress = 0, bool rehearsal = false, string machine = "box") =>
-        new(id, id.Split('.')[0], int.Parse(id.Split('.')[1][3..], System.Globalization.CultureInfo.InvariantCulture), machine, 64, Binary, 1000, state, "", rehearsal, progress, null);
+    private static RunRecord Run(string id, RunState state, double progress = 0, bool rehearsal = false, string cluster = "box") =>
+        new(id, id.Split('.')[0], int.Parse(id.Split('.')[1][3..], System.Globalization.CultureInfo.InvariantCulture), cluster, 64, Binary, 1000, state, "", rehearsal, progress, null);
 
     private static PlanVersion Plan(params PlanEntry[] entries) =>
         new(1, DateTimeOffset.UnixEpoch, "coverage", 0.5, 1, 1, "m", "c.csv", entries, Array.Empty<CarriedConfiguration>(), new Dictionary<string, double>());
@@ -50,7 +50,7 @@ public class CampaignStandingTests
         var plan = Plan(Entry("a", 1, 100), Entry("a", 2, 200), Entry("b", 1, 50), Entry("d", 1, 10), Entry("e", 1, 40));
         var runs = new[]
         {
-            Run("a.res1", RunState.Running, progress: 250, machine: "desk"),
+            Run("a.res1", RunState.Running, progress: 250, cluster: "desk"),
             Run("b.res1", RunState.Finished, progress: 1000),
             Run("d.res1", RunState.Failed),
             Run("e.res1.r1", RunState.Finished, progress: 1000, rehearsal: true),
@@ -60,7 +60,7 @@ public class CampaignStandingTests
         Assert.Equal(new[] { "a", "b" }, carried.Keys.Order(StringComparer.Ordinal));
         // a: level 1 is a quarter done (75 of 100 left), level 2 is still to come (200).
         Assert.Equal(275, carried["a"].RemainingCost, 9);
-        Assert.Equal("desk", carried["a"].Machine);
+        Assert.Equal("desk", carried["a"].Cluster);
         Assert.Equal("1 to come, 1 active", carried["a"].Why);
         Assert.Equal(0, carried["b"].RemainingCost);
         var remaining = standing.RemainingOf(new[] { "a" });

@@ -128,7 +128,7 @@ public class SelectionPropertyTests
 
     [Theory]
     [MemberData(nameof(Seeds))]
-    public void Value_objective_is_exact_with_several_machines(int seed)
+    public void Value_objective_is_exact_with_several_clusters(int seed)
     {
         var problem = RandomProblem(seed, 10, 2, SelectionObjective.Value);
         var result = Selector.Solve(problem);
@@ -153,7 +153,7 @@ public class SelectionPropertyTests
 
     [Theory]
     [MemberData(nameof(Seeds))]
-    public void Coverage_with_several_machines_stays_feasible_and_bounded(int seed)
+    public void Coverage_with_several_clusters_stays_feasible_and_bounded(int seed)
     {
         var problem = RandomProblem(seed, 10, 2, SelectionObjective.Coverage);
         var result = Selector.Solve(problem);

@@ -157,7 +157,7 @@ public class TrackingRulesTests
         Assert.Equal(NextStep.Hold, second.Step);
         Assert.StartsWith("leg ran out of time without progress 2 times in a row", second.Why, StringComparison.Ordinal);
 
-        // With progress a timeout is the normal end of a leg; a node failure is the machine's, not the run's.
+        // With progress a timeout is the normal end of a leg; a node failure is the cluster's, not the run's.
         Assert.Equal((NextStep.Continue, 0), Pick(LegDecision.Decide(new LegEnd("out_of_time", 300, 900, 5000, false, 0, 1), settings)));
         Assert.Equal((NextStep.Continue, 1), Pick(LegDecision.Decide(new LegEnd("interrupted", 300, 300, 5000, false, 0, 1), settings)));
 

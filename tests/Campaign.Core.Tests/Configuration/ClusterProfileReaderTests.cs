@@ -3,11 +3,11 @@ using Campaign.Core.Domain;
 
 namespace Campaign.Core.Tests.Configuration;
 
-public class MachineProfileReaderTests
+public class ClusterProfileReaderTests
 {
     private const string Valid = """
         name = "testbox"
-        description = "a test machine"
+        description = "a test cluster"
         batch_system = "slurm"
         cores_per_node = 64
         memory_per_node_gb = 256
@@ -25,34 +25,34 @@ public class MachineProfileReaderTests
         string.Join('\n', Valid.Split('\n').Select(l => l.StartsWith(field + " =", StringComparison.Ordinal) ? $"{field} = {value}" : l));
 
     private static IReadOnlyList<string> Problems(string text) =>
-        Assert.Throws<InvalidInputException>(() => MachineProfileReader.Read(text, "p.toml")).Problems;
+        Assert.Throws<InvalidInputException>(() => ClusterProfileReader.Read(text, "p.toml")).Problems;
 
     [Fact]
     public void A_valid_profile_is_read_with_every_field()
     {
-        var p = MachineProfileReader.Read(Valid, "p.toml");
-        Assert.Equal(new MachineProfile("testbox", "a test machine", BatchSystemKind.Slurm, 64, 256, 24, true, 1.5, 0.9, 30, 10, 2, 12), p);
+        var p = ClusterProfileReader.Read(Valid, "p.toml");
+        Assert.Equal(new ClusterProfile("testbox", "a test cluster", BatchSystemKind.Slurm, 64, 256, 24, true, 1.5, 0.9, 30, 10, 2, 12), p);
     }
 
     [Fact]
     public void Partition_and_account_are_read_and_cannot_smuggle_options_or_shell_text()
     {
-        var p = MachineProfileReader.Read(Valid + "\npartition = \"cpu-long\"\naccount = \"saltmarsh.2027\"", "p.toml");
+        var p = ClusterProfileReader.Read(Valid + "\npartition = \"cpu-long\"\naccount = \"saltmarsh.2027\"", "p.toml");
         Assert.Equal(("cpu-long", "saltmarsh.2027"), (p.Partition, p.Account));
         foreach (var hostile in new[] { "--wrap=id", "cpu; rm -rf ~", "$(id)", "a b", "", "-q" })
         {
             var problems = Problems(Valid + "\npartition = \"" + hostile + "\"");
-            Assert.Equal($"p.toml:14:13: partition = \"{hostile}\": expected {MachineProfileReader.SiteNameRule}", Assert.Single(problems));
+            Assert.Equal($"p.toml:14:13: partition = \"{hostile}\": expected {ClusterProfileReader.SiteNameRule}", Assert.Single(problems));
         }
     }
 
     [Fact]
     public void Whole_node_charging_rounds_cores_up_to_nodes()
     {
-        var p = MachineProfileReader.Read(Valid, "p.toml");
+        var p = ClusterProfileReader.Read(Valid, "p.toml");
         // 100 cores on 64-core nodes occupy 2 nodes = 128 cores; 10 h x 128 x 1.5 = 1920 core-hours.
         Assert.Equal(1920, p.ChargedCoreHours(100, 10), 9);
-        var shared = MachineProfileReader.Read(Replace("charge_whole_nodes", "false"), "p.toml");
+        var shared = ClusterProfileReader.Read(Replace("charge_whole_nodes", "false"), "p.toml");
         Assert.Equal(1500, shared.ChargedCoreHours(100, 10), 9);
     }
 

@@ -6,39 +6,39 @@ using Campaign.App.Workspaces;
 
 namespace Campaign.Cli.Commands;
 
-/// <summary>campaign machines [check FILE...]: lists machine profiles, or validates profile files.</summary>
-internal static class MachinesCommand
+/// <summary>campaign clusters [check FILE...]: lists cluster profiles, or validates profile files.</summary>
+internal static class ClustersCommand
 {
     public static Command Build(CampaignApp app)
     {
-        var command = new Command("machines", "List the machine profiles of the workspace (the built-in ones outside a workspace)");
+        var command = new Command("clusters", "List the cluster profiles of the workspace (the built-in ones outside a workspace)");
         app.Bind(command, context =>
         {
             var profiles = WorkspaceAdmin.Exists(context.Workspace)
-                ? WorkspaceAdmin.Settings(context.Workspace).Machines.Values.ToList()
-                : EmbeddedFiles.Under("profiles/").Select(p => MachineProfileReader.Read(p.Value, p.Key)).ToList();
+                ? WorkspaceAdmin.Settings(context.Workspace).Clusters.Values.ToList()
+                : EmbeddedFiles.Under("profiles/").Select(p => ClusterProfileReader.Read(p.Value, p.Key)).ToList();
             Write(context, profiles);
             return ExitCodes.Ok;
         });
 
-        var files = new Argument<string[]>("FILE") { Description = "Machine profile files (TOML) to validate", Arity = ArgumentArity.OneOrMore };
-        var check = new Command("check", "Validate machine profile files and show what they say") { files };
+        var files = new Argument<string[]>("FILE") { Description = "Cluster profile files (TOML) to validate", Arity = ArgumentArity.OneOrMore };
+        var check = new Command("check", "Validate cluster profile files and show what they say") { files };
         app.Bind(check, context =>
         {
             var problems = new List<string>();
-            var profiles = new List<MachineProfile>();
+            var profiles = new List<ClusterProfile>();
             foreach (var file in context.Parse.GetValue(files) ?? Array.Empty<string>())
             {
                 var path = app.Resolve(file);
                 if (!File.Exists(path))
                 {
-                    problems.Add($"{file}: no such file: expected a machine profile (TOML)");
+                    problems.Add($"{file}: no such file: expected a cluster profile (TOML)");
                     continue;
                 }
 
                 try
                 {
-                    profiles.Add(MachineProfileReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(path), file), file));
+                    profiles.Add(ClusterProfileReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(path), file), file));
                 }
                 catch (InvalidInputException e)
                 {
@@ -58,15 +58,15 @@ internal static class MachinesCommand
         return command;
     }
 
-    private static void Write(CommandContext context, IReadOnlyList<MachineProfile> profiles)
+    private static void Write(CommandContext context, IReadOnlyList<ClusterProfile> profiles)
     {
         if (context.Json)
         {
-            Json.Write(context.Out, new { Machines = profiles });
+            Json.Write(context.Out, new { Clusters = profiles });
             return;
         }
 
-        var table = new TextTable("machine", "batch", "cores/node", "mem GB/node", "wall limit h", "charged as", "factor", "speed", "jobs queued/running", "queue wait h (median, p90)");
+        var table = new TextTable("cluster", "batch", "cores/node", "mem GB/node", "wall limit h", "charged as", "factor", "speed", "jobs queued/running", "queue wait h (median, p90)");
         foreach (var p in profiles)
         {
             table.Add(

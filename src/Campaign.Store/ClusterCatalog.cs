@@ -3,16 +3,16 @@ using Campaign.Core.Domain;
 
 namespace Campaign.Store;
 
-/// <summary>Loads the machine profiles of a folder (one *.toml per machine, named after the machine).</summary>
-public static class MachineCatalog
+/// <summary>Loads the cluster profiles of a folder (one *.toml per cluster, named after the cluster).</summary>
+public static class ClusterCatalog
 {
     /// <summary>
     /// Reads every *.toml in <paramref name="folder"/>. Throws <see cref="InvalidInputException"/> listing the
     /// problems of every file, including a profile whose name differs from its file name.
     /// </summary>
-    public static IReadOnlyDictionary<string, MachineProfile> Load(string folder, string displayFolder)
+    public static IReadOnlyDictionary<string, ClusterProfile> Load(string folder, string displayFolder)
     {
-        var profiles = new SortedDictionary<string, MachineProfile>(StringComparer.Ordinal);
+        var profiles = new SortedDictionary<string, ClusterProfile>(StringComparer.Ordinal);
         if (!Directory.Exists(folder))
         {
             return profiles;
@@ -24,11 +24,11 @@ public static class MachineCatalog
             var display = Path.Combine(displayFolder, Path.GetFileName(file));
             try
             {
-                var profile = MachineProfileReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(file), display), display);
+                var profile = ClusterProfileReader.Read(Campaign.Core.Text.StrictUtf8.Decode(File.ReadAllBytes(file), display), display);
                 var expected = Path.GetFileNameWithoutExtension(file);
                 if (profile.Name != expected)
                 {
-                    problems.Add($"{display}: name = \"{profile.Name}\": expected \"{expected}\", the file's name (one file per machine, named after it)");
+                    problems.Add($"{display}: name = \"{profile.Name}\": expected \"{expected}\", the file's name (one file per cluster, named after it)");
                     continue;
                 }
 

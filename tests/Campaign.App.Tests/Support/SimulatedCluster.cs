@@ -5,22 +5,22 @@ using Campaign.Core.Domain;
 namespace Campaign.App.Tests.Support;
 
 /// <summary>
-/// An in-memory batch system for one machine, on the simulated clock, standing in for a real cluster and a real
+/// An in-memory batch system for one cluster, on the simulated clock, standing in for a real cluster and a real
 /// simulation code: a job waits in the queue, then runs its run at a fixed pace (M per hour), appending "t" lines
 /// to the run folder's progress file; it checkpoints when its wall time runs out (timed out) and writes the done
 /// marker when the run reaches its target (completed). It can be taken down (every call fails as a broken
-/// machine does) and it keeps its own tally of what it ran, to check the tracker's accounting against.
+/// cluster does) and it keeps its own tally of what it ran, to check the tracker's accounting against.
 /// </summary>
-public sealed class SimulatedMachine : IBatchSystem
+public sealed class SimulatedCluster : IBatchSystem
 {
     private readonly TimeProvider _clock;
-    private readonly MachineProfile _profile;
+    private readonly ClusterProfile _profile;
     private readonly Func<string, double> _hoursToFinish;
     private readonly TimeSpan _queueWait;
     private readonly Dictionary<string, Job> _jobs = new(StringComparer.Ordinal);
     private static int _nextId = 1000;
 
-    public SimulatedMachine(TimeProvider clock, MachineProfile profile, Func<string, double> hoursToFinish, TimeSpan queueWait)
+    public SimulatedCluster(TimeProvider clock, ClusterProfile profile, Func<string, double> hoursToFinish, TimeSpan queueWait)
     {
         _clock = clock;
         _profile = profile;
@@ -28,10 +28,10 @@ public sealed class SimulatedMachine : IBatchSystem
         _queueWait = queueWait;
     }
 
-    /// <summary>While true every call fails as a machine whose batch commands cannot read their configuration.</summary>
+    /// <summary>While true every call fails as a cluster whose batch commands cannot read their configuration.</summary>
     public bool Down { get; set; }
 
-    /// <summary>Job names this machine refuses, as a controller refuses a job's request (its account, its size).</summary>
+    /// <summary>Job names this cluster refuses, as a controller refuses a job's request (its account, its size).</summary>
     public HashSet<string> Refused { get; } = new(StringComparer.Ordinal);
 
     /// <summary>While true a submission times out before it reaches the queue (its answer is lost, nothing was queued).</summary>
@@ -52,7 +52,7 @@ public sealed class SimulatedMachine : IBatchSystem
     /// <summary>Jobs ever submitted, by name.</summary>
     public IReadOnlyCollection<string> SubmittedNames => _jobs.Values.Select(j => j.Request.Name).ToList();
 
-    /// <summary>What the site would charge for every job that has ended (the machine's own tally).</summary>
+    /// <summary>What the site would charge for every job that has ended (the cluster's own tally).</summary>
     public double ChargedByTheSite => _jobs.Values.Where(j => j.Final is not null).Sum(j => _profile.ChargedCoreHours(j.Request.Cores, j.Final!.Elapsed!.Value.TotalHours));
 
     public Task<string> SubmitAsync(JobRequest request, CancellationToken cancellationToken)

@@ -4,8 +4,8 @@ using Campaign.Core.Text;
 
 namespace Campaign.Core.Configuration;
 
-/// <summary>Reads and validates a machine profile from TOML text.</summary>
-public static partial class MachineProfileReader
+/// <summary>Reads and validates a cluster profile from TOML text.</summary>
+public static partial class ClusterProfileReader
 {
     /// <summary>Fields a profile may have, in the order the docs list them.</summary>
     public static readonly string[] Fields =
@@ -18,11 +18,11 @@ public static partial class MachineProfileReader
     /// <summary>Allowed partition (queue) and account names: what the error message says.</summary>
     public const string SiteNameRule = "1 to 64 characters: letters, digits, '.', '-' or '_', starting with a letter or digit";
 
-    /// <summary>Allowed machine names: what the error message says.</summary>
+    /// <summary>Allowed cluster names: what the error message says.</summary>
     public const string NameRule = "a name of 1 to 32 characters: lower-case letters, digits, '-' or '_', starting with a letter";
 
     /// <summary>Parses and validates; throws <see cref="InvalidInputException"/> listing every located problem.</summary>
-    public static MachineProfile Read(string text, string source)
+    public static ClusterProfile Read(string text, string source)
     {
         var root = TomlFields.Parse(text, source);
 
@@ -82,11 +82,11 @@ public static partial class MachineProfileReader
             "pbs" => BatchSystemKind.Pbs,
             _ => BatchSystemKind.Local,
         };
-        return new MachineProfile(name!, description, kind, (int)coresPerNode!.Value, memory!.Value, wall!.Value, wholeNodes!.Value,
+        return new ClusterProfile(name!, description, kind, (int)coresPerNode!.Value, memory!.Value, wall!.Value, wholeNodes!.Value,
             chargeFactor, speed, (int)queued, (int)running, waitMedian, waitP90, partition, account);
     }
 
-    /// <summary>True when <paramref name="name"/> is a valid machine name.</summary>
+    /// <summary>True when <paramref name="name"/> is a valid cluster name.</summary>
     public static bool IsValidName(string name) => NamePattern().IsMatch(name);
 
     [GeneratedRegex("^[A-Za-z0-9][A-Za-z0-9._-]{0,63}\\z")]

@@ -1,25 +1,25 @@
 namespace Campaign.Core.Domain;
 
 /// <summary>
-/// What Campaign needs to know about one machine: its shape, its queue limits and how the site charges it.
-/// Loaded from one TOML file per machine (see docs/formats.md).
+/// What Campaign needs to know about one cluster: its shape, its queue limits and how the site charges it.
+/// Loaded from one TOML file per cluster (see docs/formats.md).
 /// </summary>
-/// <param name="Name">Short machine name used everywhere else (lower case, digits, '-' or '_').</param>
+/// <param name="Name">Short cluster name used everywhere else (lower case, digits, '-' or '_').</param>
 /// <param name="Description">Free text for humans.</param>
 /// <param name="BatchSystem">Which batch system runs the jobs.</param>
 /// <param name="CoresPerNode">Cores in one node.</param>
 /// <param name="MemoryPerNodeGb">Memory of one node in GB.</param>
 /// <param name="WallLimitHours">Longest wall time one job may ask for.</param>
 /// <param name="ChargeWholeNodes">True when the site charges whole nodes however many cores a job uses.</param>
-/// <param name="ChargeFactor">Multiplier the site applies to elapsed x cores (queue or machine factor).</param>
-/// <param name="RelativeSpeed">Speed per core relative to the reference machine (1 = reference; 2 = twice as fast).</param>
+/// <param name="ChargeFactor">Multiplier the site applies to elapsed x cores (queue or cluster factor).</param>
+/// <param name="RelativeSpeed">Speed per core relative to the reference cluster (1 = reference; 2 = twice as fast).</param>
 /// <param name="MaxJobsQueued">Most jobs one user may have queued (pending or running).</param>
 /// <param name="MaxJobsRunning">Most jobs one user may have running.</param>
 /// <param name="QueueWaitMedianHours">Typical wait in the queue before a job starts (median), hours.</param>
 /// <param name="QueueWaitP90Hours">90th percentile of the queue wait, hours.</param>
 /// <param name="Partition">Slurm partition or PBS queue to submit to; null for the site's default.</param>
 /// <param name="Account">Project account charged; null for the user's default.</param>
-public sealed record MachineProfile(
+public sealed record ClusterProfile(
     string Name,
     string Description,
     BatchSystemKind BatchSystem,
