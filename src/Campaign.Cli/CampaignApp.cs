@@ -32,6 +32,20 @@ public sealed class CampaignApp
         Recursive = true,
     };
 
+    /// <summary>Option --detail: the full sheets (every command that has more to say than its answer).</summary>
+    internal static readonly Option<bool> DetailOption = new("--detail")
+    {
+        Description = "Show the full sheet behind the answer (fit statistics, method, formulas, every column)",
+        Recursive = true,
+    };
+
+    /// <summary>Option --plain-numbers: no thousands separators in tables (every command).</summary>
+    internal static readonly Option<bool> PlainNumbersOption = new("--plain-numbers")
+    {
+        Description = "Print numbers without thousands separators (2500000, not 2,500,000)",
+        Recursive = true,
+    };
+
     /// <summary>Creates the app with its writers, clock and current folder (tests pass their own).</summary>
     public CampaignApp(TextWriter output, TextWriter error, TimeProvider time, string currentDirectory)
     {
@@ -61,6 +75,8 @@ public sealed class CampaignApp
         {
             DirOption,
             JsonOption,
+            DetailOption,
+            PlainNumbersOption,
         };
         root.Add(InitCommand.Build(this));
         root.Add(CheckCommand.Build(this));
@@ -88,7 +104,12 @@ public sealed class CampaignApp
         {
             var json = parse.GetValue(JsonOption);
             var dir = Path.GetFullPath(parse.GetValue(DirOption) ?? ".", _currentDirectory);
-            var context = new CommandContext(parse, _out, _err, _time, dir, json);
+            // Human output is kept within the screen's width; JSON goes out as it is.
+            // (--detail asks for the full sheets, as wide as they are.)
+            var detail = parse.GetValue(DetailOption);
+            using var output = json ? null : new WrappingWriter(_out, detail ? Screen.Unbounded : Screen.WidthOf(_out));
+            var context = new CommandContext(parse, (TextWriter?)output ?? _out, _err, _time, dir, json) { Detail = detail };
+            using var numbers = Format.PlainNumbers(parse.GetValue(PlainNumbersOption));
             try
             {
                 return body(context);

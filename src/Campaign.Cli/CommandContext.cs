@@ -9,4 +9,8 @@ namespace Campaign.Cli;
 /// <param name="Time">The clock.</param>
 /// <param name="Workspace">Absolute path of the workspace folder (--dir, default the current folder).</param>
 /// <param name="Json">True when --json was given.</param>
-internal sealed record CommandContext(ParseResult Parse, TextWriter Out, TextWriter Err, TimeProvider Time, string Workspace, bool Json);
+internal sealed record CommandContext(ParseResult Parse, TextWriter Out, TextWriter Err, TimeProvider Time, string Workspace, bool Json)
+{
+    /// <summary>True when --detail was given: the full sheet behind the answer.</summary>
+    public bool Detail { get; init; }
+}

@@ -40,7 +40,8 @@ public sealed record PlanSummary(long PlanId, int ToCome, int Active, int Held, 
 /// <param name="ClusterFaults">Clusters whose batch system failed in the latest cycles.</param>
 /// <param name="LastCycle">When the last reconcile cycle ran (what the states are as of), or null.</param>
 /// <param name="Events">Recent run events, newest last.</param>
-public sealed record StatusResult(IReadOnlyList<RunView> Runs, PlanSummary? Plan, IReadOnlyList<ClusterFault> ClusterFaults, DateTimeOffset? LastCycle, IReadOnlyList<RunEvent> Events);
+/// <param name="BatchSystems">Each cluster's batch system ("slurm", "pbs", "local"): whose words a native state is.</param>
+public sealed record StatusResult(IReadOnlyList<RunView> Runs, PlanSummary? Plan, IReadOnlyList<ClusterFault> ClusterFaults, DateTimeOffset? LastCycle, IReadOnlyList<RunEvent> Events, IReadOnlyDictionary<string, string> BatchSystems);
 
 /// <summary>The campaign's status: runs, plan standing, clusters at fault, and how fresh it is.</summary>
 public sealed class StatusService
@@ -75,6 +76,7 @@ public sealed class StatusService
         }
 
         var recent = events > 0 ? TrackingStore.Events(workspace.Connection).TakeLast(events).ToList() : new List<RunEvent>();
-        return new StatusResult(views, plan, ClusterFaultStore.All(workspace.Connection), ClusterFaultStore.LastCycle(workspace.Connection), recent);
+        var batchSystems = workspace.Clusters.ToDictionary(c => c.Key, c => c.Value.BatchSystem.ToString().ToLowerInvariant(), StringComparer.Ordinal);
+        return new StatusResult(views, plan, ClusterFaultStore.All(workspace.Connection), ClusterFaultStore.LastCycle(workspace.Connection), recent, batchSystems);
     }
 }

@@ -63,10 +63,24 @@ public static class LocalSupervisor
 
         process.StandardInput.Close();
         var pid = process.Id;
-        if (Posix.StartTicks(pid) is { } ticks)
+        // The script's pid lets the runner see the job alive if this supervisor dies. On a full disk it cannot be
+        // written yet: the job runs on all the same (this supervisor is alive and says so) and the write is tried
+        // again while it waits.
+        var scriptTicks = Posix.StartTicks(pid);
+        bool TryWriteScriptPid()
         {
-            LocalJobFiles.WritePid(files.ScriptPidPath, pid, ticks);
+            try
+            {
+                LocalJobFiles.WritePid(files.ScriptPidPath, pid, scriptTicks!.Value);
+                return true;
+            }
+            catch (IOException)
+            {
+                return false;
+            }
         }
+
+        var pidWritten = scriptTicks is null || TryWriteScriptPid();
 
         using var output = new FileStream(job.OutputPath, FileMode.Append, FileAccess.Write, FileShare.ReadWrite);
         using var error = job.ErrorPath == job.OutputPath ? null : new FileStream(job.ErrorPath, FileMode.Append, FileAccess.Write, FileShare.ReadWrite);
@@ -81,6 +95,7 @@ public static class LocalSupervisor
         TimeSpan? killAt = null;
         while (!process.WaitForExit(200))
         {
+            pidWritten = pidWritten || TryWriteScriptPid();
             var now = watch.Elapsed;
             if (ending is null && (cancel.IsSet || File.Exists(files.CancelPath)))
             {

@@ -233,13 +233,33 @@ internal static class TrackingCommands
         }
 
         o.WriteLine();
-        var table = new TextTable("run", "state", "cluster", "progress", "t / target M", "legs", "job", "charged core-h", "M per hour", "predicted finish", "reason");
+        var table = context.Detail
+            ? new TextTable("run", "state", "cluster", "progress", "t / target M", "legs", "job", "batch system says", "charged core-h", "M per hour", "predicted finish", "reason")
+            : new TextTable("run", "state", "cluster", "progress", "legs", "core-h", "finish", "note");
+        var cut = false;
+        table.Wrap(context.Detail ? "reason" : "note");
         foreach (var v in status.Runs)
         {
             var r = v.Run;
             var fraction = r.DoneFraction;
-            var bar = "[" + new string('#', (int)Math.Round(fraction * 20)).PadRight(20, '.') + "] " + Format.Fixed(fraction * 100, 0).PadLeft(3) + "%";
+            var bar = "[" + new string('#', (int)Math.Round(fraction * 8)).PadRight(8, '.') + "] " + Format.Fixed(fraction * 100, 0).PadLeft(3) + "%";
             var current = v.Legs.LastOrDefault();
+            var reason = BatchErrorText.FirstLine(r.Reason);
+            if (!context.Detail)
+            {
+                table.Add(r.RunId, r.State.Name(), r.Cluster, bar, Format.Integer(v.Legs.Count), Format.Fixed(v.ChargedCoreHours, 1),
+                    v.PredictedFinish is { } day ? day.ToString("yyyy-MM-dd", CultureInfo.InvariantCulture) : "-", Format.Cut(reason, 44));
+                cut |= reason.Length > 44;
+                continue;
+            }
+
+            var job = current is null ? "-" : $"{current.JobId ?? "?"} {current.State.Replace('_', ' ')}";
+            var native = current is null || current.NativeState.Length == 0 ? "-" : $"{status.BatchSystems.GetValueOrDefault(r.Cluster, "batch system")} {current.NativeState}";
+            if (current is not null && JobStates.Exit(current.ExitCode, current.Signal) is { Length: > 0 } exit)
+            {
+                native += ", " + exit;
+            }
+
             table.Add(
                 r.RunId,
                 r.State.Name(),
@@ -247,23 +267,32 @@ internal static class TrackingCommands
                 bar,
                 Format.Fixed(r.Progress, 0) + " / " + Format.Fixed(r.TargetLength, 0),
                 Format.Integer(v.Legs.Count),
-                current is null ? "-" : $"{current.JobId ?? "?"}:{current.State}",
+                job,
+                native,
                 Format.Fixed(v.ChargedCoreHours, 1),
                 v.RateMPerHour is { } rate ? Format.Fixed(rate, 0) : "-",
                 v.PredictedFinish is { } f ? f.ToString("yyyy-MM-dd HH:mm", CultureInfo.InvariantCulture) : "-",
-                BatchErrorText.FirstLine(r.Reason));
+                reason);
         }
 
         table.WriteTo(o);
-        var byState = status.Runs.GroupBy(r => r.Run.State).Select(g => $"{g.Count()} {g.Key.Name()}");
-        o.WriteLine($"{status.Runs.Count} runs: {string.Join(", ", byState)}; charged so far {Format.Fixed(status.Runs.Sum(r => r.ChargedCoreHours), 1)} core-hours (as the tool counts it; the site's accounting rules).");
+        var byState = status.Runs.GroupBy(r => r.Run.State).Select(g => $"{Format.Integer(g.Count())} {g.Key.Name()}");
+        o.WriteLine($"{Format.Count(status.Runs.Count, "run")}: {string.Join(", ", byState)}; charged so far {Format.Fixed(status.Runs.Sum(r => r.ChargedCoreHours), 1)} core-hours as the tool counts it (the site's accounting decides).");
+        if (cut)
+        {
+            o.WriteLine("Long notes are cut: --detail (or --json) shows them whole, with each run's job and its batch system's own state.");
+        }
+
         if (status.Events.Count > 0)
         {
             o.WriteLine();
+            var events = new TextTable("at (UTC)", "run", "change", "why").Wrap("why");
             foreach (var e in status.Events)
             {
-                o.WriteLine($"{e.At[..19]}  {e.RunId}  {e.FromState} -> {e.ToState}  {e.Why}");
+                events.Add(e.At[..19].Replace('T', ' '), e.RunId, $"{e.FromState} -> {e.ToState}", e.Why);
             }
+
+            events.WriteTo(o);
         }
     }
 

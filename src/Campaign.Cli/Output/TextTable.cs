@@ -1,15 +1,34 @@
-using System.Text;
+using Spectre.Console;
+using Spectre.Console.Rendering;
 
 namespace Campaign.Cli.Output;
 
-/// <summary>A plain-text table for humans: a header, a rule, and columns padded to their widest cell.
-/// Columns whose cells all look numeric are right-aligned.</summary>
+/// <summary>
+/// A table for humans, laid out by Spectre.Console within the screen's width (<see cref="Screen.Width"/>, 100
+/// columns when the output is redirected): long cells wrap inside their column instead of widening the table.
+/// On a terminal it has a rounded frame; redirected it is plain text: a header, a rule of dashes and columns
+/// two spaces apart, nothing else, so scripts and tests read it predictably. Columns whose cells all look numeric
+/// are right-aligned. Cells stay on one line except in the columns marked with <see cref="Wrap"/> (reasons,
+/// notes), which take what room is left and wrap in it.
+/// </summary>
 internal sealed class TextTable
 {
     private readonly string[] _header;
     private readonly List<string[]> _rows = new();
+    private readonly HashSet<int> _wrap = new();
 
-    public TextTable(params string[] header) => _header = header;
+    public TextTable(params string[] header)
+    {
+        if (header.Any(string.IsNullOrWhiteSpace))
+        {
+            throw new ArgumentException("Every column needs a header.", nameof(header));
+        }
+
+        _header = header;
+    }
+
+    /// <summary>Rows added so far.</summary>
+    public int Count => _rows.Count;
 
     public void Add(params string[] cells)
     {
@@ -21,34 +40,49 @@ internal sealed class TextTable
         _rows.Add(cells);
     }
 
-    public void WriteTo(TextWriter writer)
+    /// <summary>Lets the named columns wrap (long text: reasons, notes), so the table fits the screen.</summary>
+    public TextTable Wrap(params string[] columns)
     {
-        var widths = _header.Select((h, i) => Math.Max(h.Length, _rows.Count == 0 ? 0 : _rows.Max(r => r[i].Length))).ToArray();
-        var numeric = _header.Select((_, i) => _rows.Count > 0 && _rows.All(r => IsNumeric(r[i]))).ToArray();
-        writer.WriteLine(Line(_header, widths, numeric).TrimEnd());
-        writer.WriteLine(string.Join("  ", widths.Select(w => new string('-', w))));
-        foreach (var row in _rows)
+        foreach (var column in columns)
         {
-            writer.WriteLine(Line(row, widths, numeric).TrimEnd());
+            _wrap.Add(Array.IndexOf(_header, column) is >= 0 and var i ? i : throw new ArgumentException($"No column '{column}'.", nameof(columns)));
         }
+
+        return this;
     }
 
-    private static string Line(string[] cells, int[] widths, bool[] numeric)
+    public void WriteTo(TextWriter writer)
     {
-        var builder = new StringBuilder();
-        for (var i = 0; i < cells.Length; i++)
+        var framed = Screen.IsTerminal(writer);
+        var table = new Table { Border = framed ? TableBorder.Rounded : new PlainBorder(), Expand = false };
+        for (var i = 0; i < _header.Length; i++)
         {
-            if (i > 0)
-            {
-                builder.Append("  ");
-            }
-
-            builder.Append(numeric[i] ? cells[i].PadLeft(widths[i]) : cells[i].PadRight(widths[i]));
+            var numeric = _rows.Count > 0 && _rows.All(r => IsNumeric(r[i]));
+            var column = new TableColumn(new Text(_header[i])) { Alignment = numeric ? Justify.Right : Justify.Left, NoWrap = !_wrap.Contains(i) };
+            column.Padding = framed ? new Padding(1, 0, 1, 0) : new Padding(0, 0, 1, 0);
+            table.AddColumn(column);
         }
 
-        return builder.ToString();
+        foreach (var row in _rows)
+        {
+            table.AddRow(row.Select(c => (IRenderable)new Text(c)).ToArray());
+        }
+
+        Screen.Write(writer, table, trimPlain: !framed);
     }
 
     private static bool IsNumeric(string cell) =>
-        cell.Length > 0 && cell.All(c => char.IsAsciiDigit(c) || c is '.' or '-' or '+' or 'e' or 'E' or ',');
+        cell.Length > 0 && cell.All(c => char.IsAsciiDigit(c) || c is '.' or '-' or '+' or 'e' or 'E' or ',' or '%' or 'x');
+
+    /// <summary>Plain text: a rule of dashes under the header, a space between columns (plus the padding), nothing else.</summary>
+    private sealed class PlainBorder : TableBorder
+    {
+        public override string GetPart(TableBorderPart part) => part switch
+        {
+            TableBorderPart.HeaderBottomLeft or TableBorderPart.HeaderBottomRight => "",
+            TableBorderPart.HeaderBottom => "-",
+            TableBorderPart.HeaderLeft or TableBorderPart.HeaderRight or TableBorderPart.CellLeft or TableBorderPart.CellRight => "",
+            _ => " ",
+        };
+    }
 }
