@@ -79,20 +79,28 @@ internal static class EstimateCommand
         switch (format)
         {
             case "csv":
-                WriteCsv(context.Out, estimate);
+                WriteCsv(WrappingWriter.Unwrapped(context.Out), estimate);
                 break;
             case "md":
-                WriteMarkdown(context.Out, estimate, allocations, modelId, storage);
+                WriteMarkdown(WrappingWriter.Unwrapped(context.Out), estimate, allocations, modelId, storage);
                 break;
             default:
-                WriteTable(context.Out, estimate, allocations, modelId, storage);
+                if (context.Detail)
+                {
+                    WriteTable(context.Out, estimate, allocations, modelId, storage);
+                }
+                else
+                {
+                    WriteShort(context.Out, estimate, allocations, modelId);
+                }
+
                 break;
         }
     }
 
     private static readonly string[] Header =
     {
-        "id", "level", "kind", "cluster", "cores", "T/M", "median core-h", "low", "high", "wall h", "legs", "node-h", "charged core-h", "checkpoint GB", "output GB", "flags",
+        "id", "res", "kind", "cluster", "cores", "T/M", "median core-h", "low", "high", "wall h", "legs", "node-h", "charged core-h", "checkpoint GB", "output GB", "flags",
     };
 
     private static string[] Cells(EstimateRow r) => new[]
@@ -128,6 +136,40 @@ internal static class EstimateCommand
         o.WriteLine(Caution);
     }
 
+    /// <summary>What a coordinator acts on: cost per run and level with its interval, the totals against the allocations, what to be wary of.</summary>
+    private static void WriteShort(TextWriter o, ProposalEstimate e, IReadOnlyDictionary<string, double> allocations, long? modelId)
+    {
+        var interval = $"{Pct(e.Interval)} interval";
+        var table = new TextTable("id", "res", "cluster", "cores", "core-h", interval, "wall h", "legs", "flags");
+        foreach (var r in e.Runs)
+        {
+            var flags = new[] { r.Kind == "ecc" ? "ecc trials" : "", r.Source == "given" ? "given" : "", r.Extrapolation.Count > 0 ? "beyond logs" : "" };
+            table.Add(r.Id, Format.Integer(r.Level), r.Cluster, Format.Integer(r.Cores), Format.Fixed(r.Median, 0), $"{Format.Fixed(r.Low, 0)} .. {Format.Fixed(r.High, 0)}",
+                Format.Fixed(r.WallHours, 1), Format.Integer(r.Legs), string.Join(", ", flags.Where(f => f.Length > 0)));
+        }
+
+        table.WriteTo(o);
+        var flagged = e.Runs.Where(r => r.Extrapolation.Count > 0).ToList();
+        if (flagged.Count > 0)
+        {
+            o.WriteLine($"Beyond the logged runs ({Format.Count(flagged.Count, "row")}; treat with care): "
+                + Format.List(flagged.Select(r => $"{r.Id} res {r.Level}{(r.Kind == "ecc" ? " trials" : "")}: {string.Join("; ", r.Extrapolation)}"), 3, "; ") + ".");
+        }
+
+        o.WriteLine();
+        var totals = new TextTable("total", "charged median", $"charged {interval}", "allocation core-h", "median / allocation");
+        foreach (var (name, t) in e.ByCluster.Append(new KeyValuePair<string, EstimateTotal>("ALL", e.Total)))
+        {
+            var allocation = name == "ALL" ? allocations.Values.Sum() : allocations.GetValueOrDefault(name);
+            totals.Add(name, Format.Fixed(t.ChargedMedian, 0), $"{Format.Fixed(t.ChargedLow, 0)} .. {Format.Fixed(t.ChargedHigh, 0)}",
+                allocation > 0 ? Format.Fixed(allocation, 0) : "-", allocation > 0 ? Format.Fixed(t.ChargedMedian / allocation * 100, 0) + "%" : "-");
+        }
+
+        totals.WriteTo(o);
+        o.WriteLine($"Core-hours consumed per run and resolution at their median; cost model {(modelId is null ? "(none: given costs only)" : modelId.Value.ToString(CultureInfo.InvariantCulture))}. Node-hours, charges per row, storage and the method: --detail; for a proposal: --format md.");
+        o.WriteLine(Caution);
+    }
+
     private static void WriteNotes(TextWriter o, ProposalEstimate e, long? modelId, StorageModel storage)
     {
         o.WriteLine($"Core-hours consumed (wall x cores) at {Pct(e.Interval)} central prediction intervals; cost model {(modelId is null ? "(none: given costs only)" : modelId.Value.ToString(CultureInfo.InvariantCulture))}.");
@@ -136,9 +178,9 @@ internal static class EstimateCommand
         if (flagged.Count > 0)
         {
             o.WriteLine($"EXTRAPOLATION: {flagged.Count} rows lie outside the logged runs; treat them with extra care:");
-            foreach (var r in flagged.Take(10))
+            foreach (var r in flagged)
             {
-                o.WriteLine($"  {r.Id} level {r.Level}{(r.Kind == "ecc" ? " (eccentricity trials)" : "")}: {string.Join("; ", r.Extrapolation)}");
+                o.WriteLine($"  {r.Id} res {r.Level}{(r.Kind == "ecc" ? " (eccentricity trials)" : "")}: {string.Join("; ", r.Extrapolation)}");
             }
         }
     }
@@ -168,6 +210,7 @@ internal static class EstimateCommand
 
     private static void WriteCsv(TextWriter o, ProposalEstimate e)
     {
+        using var raw = Format.PlainNumbers(true); // a CSV carries raw numbers
         o.WriteLine(string.Join(",", Header.Select(Quote)));
         foreach (var r in e.Runs)
         {

@@ -55,17 +55,36 @@ internal static class ForecastCommand
         }
 
         var o = context.Out;
-        o.WriteLine($"Forecast from {result.Start:yyyy-MM-dd HH:mm} UTC of {source}; {result.Replicas} replicas; leg failure probability {Format.Fixed(failure.Probability * 100, 1)}% ({failure.Basis}).");
-        o.WriteLine($"Campaign finishes: P10 {Date(result.Finish.P10)}, P50 {Date(result.Finish.P50)}, P90 {Date(result.Finish.P90)} (\"not within\": fewer replicas than that finished within the allocation).");
-        o.WriteLine($"Probability that the plan fits its allocations (every run finished, within charge and end date): {Format.Fixed(result.ProbabilityFits * 100, 1)}%.");
+        if (context.Detail)
+        {
+            o.WriteLine($"Forecast from {result.Start:yyyy-MM-dd HH:mm} UTC of {source}; {result.Replicas} replicas; leg failure probability {Format.Fixed(failure.Probability * 100, 1)}% ({failure.Basis}).");
+            o.WriteLine($"Campaign finishes: P10 {Date(result.Finish.P10)}, P50 {Date(result.Finish.P50)}, P90 {Date(result.Finish.P90)} (\"not within\": fewer replicas than that finished within the allocation).");
+            o.WriteLine($"Probability that the plan fits its allocations (every run finished, within charge and end date): {Format.Fixed(result.ProbabilityFits * 100, 1)}%.");
+        }
+        else
+        {
+            o.WriteLine($"Forecast of {source}, from {result.Start:yyyy-MM-dd}.");
+            o.WriteLine($"Finishes {Date(result.Finish.P50)} (P10 {Date(result.Finish.P10)}, P90 {Date(result.Finish.P90)}); chance the plan fits its allocations: {Format.Fixed(result.ProbabilityFits * 100, 1)}%.");
+        }
+
         o.WriteLine();
         if (result.Windows.Count > 0)
         {
-            var windows = new TextTable("cluster", "window", "granted core-h", "mean charge", "P10 .. P90", "P(over)", "P(>10% unused)");
+            var windows = context.Detail
+                ? new TextTable("cluster", "window", "granted core-h", "mean charge", "P10 .. P90", "P(over)", "P(>10% unused)")
+                : new TextTable("cluster", "window", "granted", "charge P10 .. P90", "P(over)", "P(>10% unused)");
             foreach (var w in result.Windows)
             {
-                windows.Add(w.Cluster, $"{w.Start:yyyy-MM-dd}..{w.End:yyyy-MM-dd}", Format.Fixed(w.Amount, 0), Format.Fixed(w.MeanCharge, 0), $"{Format.Fixed(w.P10, 0)} .. {Format.Fixed(w.P90, 0)}",
-                    Format.Fixed(w.ProbabilityOver, 2), Format.Fixed(w.ProbabilityUnused, 2));
+                var window = $"{w.Start:yyyy-MM-dd} .. {w.End:yyyy-MM-dd}";
+                var band = $"{Format.Fixed(w.P10, 0)} .. {Format.Fixed(w.P90, 0)}";
+                if (context.Detail)
+                {
+                    windows.Add(w.Cluster, window, Format.Fixed(w.Amount, 0), Format.Fixed(w.MeanCharge, 0), band, Format.Fixed(w.ProbabilityOver, 2), Format.Fixed(w.ProbabilityUnused, 2));
+                }
+                else
+                {
+                    windows.Add(w.Cluster, window, Format.Fixed(w.Amount, 0), band, Format.Fixed(w.ProbabilityOver, 2), Format.Fixed(w.ProbabilityUnused, 2));
+                }
             }
 
             windows.WriteTo(o);
@@ -75,7 +94,7 @@ internal static class ForecastCommand
         var late = result.MostLikelyLate(5);
         if (late.Count > 0)
         {
-            o.WriteLine("Most likely to be late (finish after the allocation ends, or not at all within it): " + string.Join(", ", late.Select(r => $"{r.Id} ({Format.Fixed(r.ProbabilityLate * 100, r.ProbabilityLate < 0.01 ? 1 : 0)}%)")));
+            o.WriteLine("Most likely to be late (after the allocation ends, or not within it): " + string.Join(", ", late.Select(r => $"{r.Id} ({Format.Fixed(r.ProbabilityLate * 100, r.ProbabilityLate < 0.01 ? 1 : 0)}%)")));
             o.WriteLine();
         }
 
@@ -86,6 +105,11 @@ internal static class ForecastCommand
         }
 
         table.WriteTo(o);
-        o.WriteLine("A simulation from stated assumptions (docs/forecast.md): queue behaviour at a real site can differ, and the site's charging rules decide.");
+        if (!context.Detail)
+        {
+            o.WriteLine("Replicas, failure rate and mean charges: --detail.");
+        }
+
+        o.WriteLine("A simulation from stated assumptions (docs/forecast.md): queues at a real site can differ, and the site's charging rules decide.");
     }
 }

@@ -75,7 +75,7 @@ internal static class LengthCommand
             }
             else
             {
-                LengthRow.WriteOne(context.Out, row, settings.Length);
+                LengthRow.WriteOne(context.Out, row, settings.Length, context.Detail);
             }
 
             return ExitCodes.Ok;
@@ -95,7 +95,7 @@ internal static class LengthCommand
         }
         else
         {
-            LengthRow.WriteTable(context.Out, rows);
+            LengthRow.WriteTable(context.Out, rows, context.Detail);
         }
     }
 

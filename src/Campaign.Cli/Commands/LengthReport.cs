@@ -49,12 +49,14 @@ internal sealed record LengthRow(
             length.DampingTime);
     }
 
-    /// <summary>The caution printed under every length table.</summary>
-    public const string Caution =
-        "Lengths in units of the total mass M. Inspiral: TaylorT4 3.5PN with the leading aligned-spin term (in-plane spins neglected);\n" +
-        "merger, post-peak and extraction allowances from the [length] settings. Post-Newtonian estimates: check short runs before committing an allocation.";
+    /// <summary>The caution printed under every length table, once.</summary>
+    public const string Caution = "Post-Newtonian estimates, in units of the total mass M: check short runs before committing an allocation.";
 
-    public static void WriteTable(TextWriter writer, IReadOnlyList<LengthRow> rows)
+    /// <summary>What --detail adds under the caution: where the numbers come from.</summary>
+    public const string Method =
+        "Inspiral: TaylorT4 3.5PN with the leading aligned-spin term (in-plane spins neglected); merger, post-peak and extraction allowances from the [length] settings.";
+
+    public static void WriteTable(TextWriter writer, IReadOnlyList<LengthRow> rows, bool detail = false)
     {
         var table = new TextTable("id", "q", "chi_eff", "|chi1|", "|chi2|", "M*omega0", "orbits", "inspiral M", "total M", "M_f", "chi_f", "tau_220 M");
         foreach (var r in rows)
@@ -76,11 +78,28 @@ internal sealed record LengthRow(
 
         table.WriteTo(writer);
         writer.WriteLine(Caution);
+        if (detail)
+        {
+            writer.WriteLine(Method);
+        }
     }
 
-    public static void WriteOne(TextWriter writer, LengthRow r, LengthSettings settings)
+    public static void WriteOne(TextWriter writer, LengthRow r, LengthSettings settings, bool detail = false)
     {
         writer.WriteLine($"Binary q = {Format.Significant(r.Q, 6)}, chi1 = ({Join(r.Chi1)}), chi2 = ({Join(r.Chi2)}), M*omega0 = {Format.Significant(r.Omega0, 6)}");
+        if (!detail)
+        {
+            var brief = new TextTable("quantity", "value", "unit");
+            brief.Add("total simulated length", Format.Fixed(r.TotalM, 0), "M");
+            brief.Add("inspiral orbits", Format.Fixed(r.InspiralOrbits, 1), "orbits");
+            brief.Add("inspiral time", Format.Fixed(r.InspiralTimeM, 0), "M");
+            brief.Add("remnant mass M_f", Format.Fixed(r.RemnantMass, 4), "M");
+            brief.Add("remnant spin chi_f", Format.Fixed(r.RemnantSpin, 3), "");
+            brief.WriteTo(writer);
+            writer.WriteLine(Caution + " Every term and its formula: --detail.");
+            return;
+        }
+
         var table = new TextTable("quantity", "value", "unit", "note");
         table.Add("symmetric mass ratio eta", Format.Fixed(r.Eta, 5), "", "q/(1+q)^2");
         table.Add("effective spin chi_eff", Format.Fixed(r.ChiEff, 4), "", "(m1 chi1z + m2 chi2z)/M");
@@ -97,6 +116,7 @@ internal sealed record LengthRow(
         table.Add("ringdown damping time tau_220", Format.Fixed(r.RingdownDampingTimeM, 2), "M", "");
         table.WriteTo(writer);
         writer.WriteLine(Caution);
+        writer.WriteLine(Method);
     }
 
     private static double Magnitude(double[] v) => Math.Sqrt(v.Sum(x => x * x));

@@ -77,6 +77,12 @@ internal static class ModelCommand
         }
 
         var o = context.Out;
+        if (!context.Detail)
+        {
+            WriteShort(o, id, fittedAt, model);
+            return;
+        }
+
         o.WriteLine($"Cost model {id} ({fittedAt}): ln(core-hours x cluster speed) fitted on {model.RunCount} runs ({model.RunsSkipped} skipped: failed, or partial without t_end).");
         o.WriteLine($"Fit: {(model.Robust ? "Huber robust regression (IRLS)" : "least squares (QR)")}{(model.UsedPrior ? "; FEW LOGS: blended with prior exponents (see docs/cost-model.md), intervals are wider" : "")}.");
         o.WriteLine($"Chosen feature set: {model.FeatureSet} (simplest within one standard error of the best {model.Folds}-fold CV error).");
@@ -111,6 +117,55 @@ internal static class ModelCommand
 
         o.WriteLine("These are statistical estimates from the group's own history; the allocating site's charging rules decide what is charged.");
     }
+
+    /// <summary>What a coordinator acts on: how good the model is, what drives cost, and what to be wary of.</summary>
+    private static void WriteShort(TextWriter o, long id, string fittedAt, FittedCostModel model)
+    {
+        var at = DateTimeOffset.TryParse(fittedAt, System.Globalization.CultureInfo.InvariantCulture, System.Globalization.DateTimeStyles.AssumeUniversal, out var t)
+            ? t.UtcDateTime.ToString("yyyy-MM-dd HH:mm", System.Globalization.CultureInfo.InvariantCulture) + " UTC"
+            : fittedAt;
+        o.WriteLine($"Cost model {id}, fitted {at} on {Format.Count(model.RunCount, "run")} ({Format.Integer(model.RunsSkipped)} skipped: failed, or partial without t_end){(model.Robust ? "; robust fit" : "")}.");
+        o.WriteLine($"Typical error {Format.Fixed(model.CvMedianAbsPctError, 1)}% (median, on held-out runs); {Format.Fixed(model.CvIntervalLevel * 100, 0)}% intervals held {Format.Fixed(model.CvIntervalCoverage * 100, 1)}% of them.");
+        if (model.UsedPrior)
+        {
+            o.WriteLine("FEW LOGS: the exponents are blended with prior values (docs/cost-model.md), and the intervals are wider.");
+        }
+
+        o.WriteLine();
+        var drivers = new TextTable("what drives the cost", "effect", "+- 1 SE");
+        for (var j = 0; j < model.Terms.Length; j++)
+        {
+            if (model.Terms[j] != "intercept")
+            {
+                drivers.Add(Driver(model.Terms[j]), Reading(model.Terms[j], model.Coefficients[j]), Format.Fixed(model.StandardErrors[j], 2));
+            }
+        }
+
+        drivers.WriteTo(o);
+        if (model.DownWeighted.Length > 0)
+        {
+            o.WriteLine("Outliers, down-weighted: " + Format.List(model.DownWeighted.Select(r => $"{r.RunId} ({(r.ResidualPct >= 0 ? "+" : "")}{Format.Fixed(r.ResidualPct, 0)}%)"), 4) + ".");
+        }
+
+        if (model.Influential.Length > 0)
+        {
+            o.WriteLine("Runs that sway the fit most: " + Format.List(model.Influential.Select(r => r.RunId), 4) + ".");
+        }
+
+        o.WriteLine("The full sheet (feature sets compared, coefficients, Cook's distances): --detail.");
+        o.WriteLine("Statistical estimates from the group's own history; the site's charging rules decide what is charged.");
+    }
+
+    private static string Driver(string term) => term switch
+    {
+        "ln_length" => "simulated length T/M",
+        "ln_q" => "mass ratio q",
+        "spin" => "spin, 1 - chi_max",
+        "level" => "resolution level",
+        "ln_cores" => "cores per job",
+        _ when term.StartsWith(FeatureSet.ClusterPrefix, StringComparison.Ordinal) => "cluster " + term[FeatureSet.ClusterPrefix.Length..],
+        _ => term,
+    };
 
     private static string Reading(string term, double b) => term switch
     {

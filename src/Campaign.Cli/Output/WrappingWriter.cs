@@ -25,6 +25,21 @@ internal sealed class WrappingWriter : TextWriter
 
     public override Encoding Encoding => Inner.Encoding;
 
+    /// <summary>
+    /// The writer under <paramref name="writer"/>, with what was written so far flushed: for output whose lines must
+    /// stay whole (Markdown, CSV, LaTeX).
+    /// </summary>
+    public static TextWriter Unwrapped(TextWriter writer)
+    {
+        if (writer is not WrappingWriter wrapping)
+        {
+            return writer;
+        }
+
+        wrapping.Flush();
+        return wrapping.Inner;
+    }
+
     public override void Write(char value)
     {
         if (value == '\n')

@@ -111,6 +111,28 @@ public sealed class TomlFields
         return number;
     }
 
+    /// <summary>
+    /// An amount of core-hours or node-hours greater than 0 and at most <paramref name="max"/>: a TOML number, or a
+    /// string written as people write amounts ("2.5M", "250k", "2,500,000"; <see cref="Amount"/>).
+    /// </summary>
+    public double? Amount(string key, bool required, double max)
+    {
+        var expected = $"a number greater than 0 and at most {FieldProblem.Show(max)}, or a string with {Text.Amount.Expected}";
+        var value = Get(key, required, expected);
+        if (value is null)
+        {
+            return null;
+        }
+
+        var number = value.Kind == TomlKind.String ? (Text.Amount.TryParse((string)value.Value, out var parsed) ? parsed : double.NaN) : AsNumber(value);
+        if (!double.IsFinite(number) || number <= 0 || number > max)
+        {
+            return Wrong<double?>(key, value, expected);
+        }
+
+        return number;
+    }
+
     /// <summary>An integer in [min, max].</summary>
     public long? Integer(string key, bool required, long min, long max)
     {

@@ -130,7 +130,7 @@ public static class WorkspaceConfigReader
             fields.Problem("cluster", "one of campaign.clusters: " + string.Join(", ", clusters));
         }
 
-        var amount = fields.PositiveNumber("amount", true, 1e12);
+        var amount = fields.Amount("amount", true, 1e12);
         var unit = fields.Choice("unit", true, "core-hours", "node-hours");
         var start = fields.Date("start", true);
         var end = fields.Date("end", true);
@@ -146,7 +146,7 @@ public static class WorkspaceConfigReader
             w.RejectUnknown("start", "end", "amount");
             var ws = w.Date("start", true);
             var we = w.Date("end", true);
-            var wa = w.PositiveNumber("amount", true, 1e12);
+            var wa = w.Amount("amount", true, 1e12);
             if (ws is null || we is null || wa is null)
             {
                 continue;

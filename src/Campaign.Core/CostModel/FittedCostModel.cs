@@ -67,6 +67,25 @@ public sealed record FittedCostModel
     /// <summary>Largest value of each term in the training data.</summary>
     public required double[] TermMax { get; init; }
 
+    /// <summary>
+    /// An extrapolation in the user's terms, not the model's transformed features: "chi_max 0.74 beyond the logs'
+    /// 0.62", "length 6,777 M beyond the logs' 6,100 M", "q 9 beyond the logs' 8", "level 0 below the logs' 1".
+    /// </summary>
+    internal static string Beyond(string term, double value, double edge, bool above)
+    {
+        static string G(double v, string format) => v.ToString(format, System.Globalization.CultureInfo.InvariantCulture);
+        var (name, shown, bound) = term switch
+        {
+            "ln_length" => ("length", G(Math.Exp(value), "N0") + " M", G(Math.Exp(edge), "N0") + " M"),
+            "ln_q" => ("q", G(Math.Exp(value), "0.##"), G(Math.Exp(edge), "0.##")),
+            "spin" => ("chi_max", G(1 - Math.Exp(-value), "0.00"), G(1 - Math.Exp(-edge), "0.00")),
+            "ln_cores" => ("cores", G(Math.Exp(value), "N0"), G(Math.Exp(edge), "N0")),
+            "level" => ("level", G(value, "0"), G(edge, "0")),
+            _ => (term, G(value, "G4"), G(edge, "G4")),
+        };
+        return $"{name} {shown} {(above ? "beyond" : "below")} the logs' {bound}";
+    }
+
     /// <summary>Largest leverage of a training run.</summary>
     public required double MaxLeverage { get; init; }
 
@@ -121,13 +140,13 @@ public sealed record FittedCostModel
 
             if (x[j] < TermMin[j] - 1e-9 || x[j] > TermMax[j] + 1e-9)
             {
-                reasons.Add($"{Terms[j]} = {x[j].ToString("G4", System.Globalization.CultureInfo.InvariantCulture)} outside the logs' range [{TermMin[j].ToString("G4", System.Globalization.CultureInfo.InvariantCulture)}, {TermMax[j].ToString("G4", System.Globalization.CultureInfo.InvariantCulture)}]");
+                reasons.Add(Beyond(Terms[j], x[j], x[j] > TermMax[j] ? TermMax[j] : TermMin[j], x[j] > TermMax[j]));
             }
         }
 
         if (leverage > MaxLeverage * (1 + 1e-9))
         {
-            reasons.Add($"leverage {leverage.ToString("G3", System.Globalization.CultureInfo.InvariantCulture)} beyond the logs' largest {MaxLeverage.ToString("G3", System.Globalization.CultureInfo.InvariantCulture)}");
+            reasons.Add($"a combination of parameters unlike any logged run (leverage {leverage.ToString("G2", System.Globalization.CultureInfo.InvariantCulture)}, the logs' largest {MaxLeverage.ToString("G2", System.Globalization.CultureInfo.InvariantCulture)})");
         }
 
         if (!Clusters.ContainsKey(o.Cluster))

@@ -66,7 +66,7 @@ public sealed class BinaryConfigurationDraft
         switch (Omega0, Orbits)
         {
             case (null, null):
-                checks.Add("omega0", "(missing)", "M*omega0, or a number of orbits with orbits");
+                checks.Add("omega0", "(missing)", "the initial orbital frequency M*omega0 (for example 0.018), or a number of orbits instead (--orbits N, or an orbits column)");
                 break;
             case ({ }, { }):
                 checks.Add("orbits", FieldProblem.Show(Orbits.Value), "either omega0 or orbits, not both");

@@ -288,7 +288,9 @@ public static class Migrations
             ALTER TABLE machine_faults RENAME TO cluster_faults;
             ALTER TABLE cluster_faults RENAME COLUMN machine TO cluster;
             UPDATE plans SET carried_json = replace(carried_json, '"Machine":', '"Cluster":');
-            UPDATE cost_models SET model_json = replace(replace(replace(model_json, '"Machines":', '"Clusters":'), '"machine:', '"cluster:'), '+machine"', '+cluster"');
+            -- (System.Text.Json writes '+' as \u002B.)
+            UPDATE cost_models SET model_json = replace(replace(replace(replace(model_json, '"Machines":', '"Clusters":'), '"machine:', '"cluster:'),
+                '+machine"', '+cluster"'), '\u002Bmachine"', '\u002Bcluster"');
 
             -- Campaign's own job states (the batch system's own word stays in native_state).
             UPDATE legs SET job_state = CASE job_state

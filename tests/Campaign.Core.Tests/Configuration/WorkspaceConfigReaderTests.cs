@@ -91,7 +91,7 @@ public class WorkspaceConfigReaderTests
     [Theory]
     [InlineData("clusters = [\"alpha\", \"beta\"]", "clusters = [\"alpha\", \"beta\", \"gamma\"]", "c.toml:3:12: campaign.clusters = [\"alpha\", \"beta\", \"gamma\"]: expected cluster names with a profile; \"gamma\" has none (known: alpha, beta)")]
     [InlineData("default_cluster = \"beta\"", "default_cluster = \"zeta\"", "c.toml:4:19: campaign.default_cluster = \"zeta\": expected one of campaign.clusters: alpha, beta")]
-    [InlineData("amount = 2000", "amount = -5", "c.toml:25:10: allocation.amount = -5: expected a number greater than 0 and at most 1000000000000")]
+    [InlineData("amount = 2000", "amount = -5", "c.toml:25:10: allocation.amount = -5: expected a number greater than 0 and at most 1000000000000, or a string with " + Campaign.Core.Text.Amount.Expected)]
     [InlineData("unit = \"node-hours\"", "unit = \"hours\"", "c.toml:26:8: allocation.unit = \"hours\": expected one of \"core-hours\", \"node-hours\"")]
     [InlineData("end = 2027-06-30\n\n[defaults]", "end = 2026-06-30\n\n[defaults]", "c.toml:28:7: allocation.end = 2026-06-30: expected a date after start = 2027-01-01")]
     [InlineData("start = \"2027-01-01\"", "start = \"January\"", "c.toml:27:9: allocation.start = \"January\": expected a date YYYY-MM-DD")]

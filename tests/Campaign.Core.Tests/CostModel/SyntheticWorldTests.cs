@@ -155,7 +155,25 @@ public class SyntheticWorldTests
         var inside = model.Predict(data[1], 0.9);
         Assert.Empty(inside.Extrapolation);
         var outside = model.Predict(data[1] with { LogQ = Math.Log(30) }, 0.9);
-        Assert.Contains(outside.Extrapolation, r => r.StartsWith("ln_q = 3.401 outside the logs' range", StringComparison.Ordinal));
+        // Said in the user's terms (q, not the model's ln q).
+        Assert.Contains(outside.Extrapolation, r => r.StartsWith("q 30 beyond the logs' ", StringComparison.Ordinal));
+    }
+
+    [Theory]
+    [InlineData("ln_length", 8.8212898, 8.7160441, true, "length 6,777 M beyond the logs' 6,100 M")]
+    [InlineData("ln_q", 2.19722, 2.07944, true, "q 9 beyond the logs' 8")]
+    [InlineData("level", 0, 1, false, "level 0 below the logs' 1")]
+    public void Extrapolation_is_said_in_the_quantities_a_user_gave_not_the_models_features(string term, double value, double edge, bool above, string expected)
+    {
+        // The features are ln T/M and ln q: exp(8.8212898) = 6,777.0 and exp(8.7160441) = 6,100.0; exp(2.19722) = 9.
+        Assert.Equal(expected, FittedCostModel.Beyond(term, value, edge, above));
+    }
+
+    [Fact]
+    public void The_spin_feature_is_said_as_chi_max()
+    {
+        // The spin feature is -ln(1 - chi_max): chi_max 0.74 is 1.34707, 0.62 is 0.96758.
+        Assert.Equal("chi_max 0.74 beyond the logs' 0.62", FittedCostModel.Beyond("spin", -Math.Log(1 - 0.74), -Math.Log(1 - 0.62), true));
     }
 
     [Fact]

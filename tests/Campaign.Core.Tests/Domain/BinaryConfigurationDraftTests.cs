@@ -108,7 +108,7 @@ public class BinaryConfigurationDraftTests
         Assert.Equal(new[] { "orbits = 20: expected either omega0 or orbits, not both" }, Messages(both));
         var neither = Valid();
         neither.Omega0 = null;
-        Assert.Equal(new[] { "omega0 = (missing): expected M*omega0, or a number of orbits with orbits" }, Messages(neither));
+        Assert.Equal(new[] { "omega0 = (missing): expected the initial orbital frequency M*omega0 (for example 0.018), or a number of orbits instead (--orbits N, or an orbits column)" }, Messages(neither));
     }
 
     [Fact]
