@@ -17,6 +17,9 @@ public static class RunLogReader
     /// <summary>Columns every run-log file must have.</summary>
     public static readonly string[] Required = { "run_id", "q", "chi1z", "chi2z", "omega0", "level", "cores", "cluster", "wall_hours", "outcome" };
 
+    /// <summary>The former name of the legs column, still read.</summary>
+    public const string FormerLegsColumn = "segments";
+
     /// <summary>Parses and validates the file text against the known clusters.</summary>
     public static IReadOnlyList<RunLogRow> Read(string text, string source, LengthSettings settings, IReadOnlyCollection<string> knownClusters)
     {
@@ -35,7 +38,7 @@ public static class RunLogReader
 
         var problems = new List<string>();
         var logs = new List<RunLogRow>();
-        var extraColumns = table.Header.Where(c => !KnownColumns.Contains(c)).ToList();
+        var extraColumns = table.Header.Where(c => !KnownColumns.Contains(c) && c != FormerLegsColumn).ToList();
         var ids = new Dictionary<string, int>(StringComparer.Ordinal);
         var known = string.Join(", ", knownClusters.Order(StringComparer.Ordinal));
         foreach (var row in table.Rows)
@@ -82,7 +85,9 @@ public static class RunLogReader
             var coreHours = Positive(cells, "core_hours", 1e12);
             var tEnd = Positive(cells, "t_end", 1e9);
             var orbits = Positive(cells, "orbits", 1e5);
-            var legs = Bounded(cells, "legs", cells.Integer("legs"), 1, 1_000_000, required: false);
+            // Logs written before the column got its current name call it "segments".
+            var legsColumn = !table.Has("legs") && table.Has(FormerLegsColumn) ? FormerLegsColumn : "legs";
+            var legs = Bounded(cells, legsColumn, cells.Integer(legsColumn), 1, 1_000_000, required: false);
             var checkpoint = Positive(cells, "checkpoint_gb", 1e7);
             var output = Positive(cells, "output_gb", 1e9);
             var started = Timestamp(cells, "started");

@@ -27,6 +27,16 @@ public class RunLogReaderTests
     }
 
     [Fact]
+    public void The_legs_column_is_read_under_its_former_name_too_and_not_kept_as_an_extra_column()
+    {
+        var now = Read("run_id,q,chi1z,chi2z,omega0,level,cores,cluster,wall_hours,outcome,legs\nr1,2,0,0,0.018,1,64,alpha,10,completed,7\n");
+        var before = Read("run_id,q,chi1z,chi2z,omega0,level,cores,cluster,wall_hours,outcome,segments\nr1,2,0,0,0.018,1,64,alpha,10,completed,7\n");
+        Assert.Equal(7, now[0].Log.Legs);
+        Assert.Equal(7, before[0].Log.Legs);
+        Assert.Empty(before[0].Extra);
+    }
+
+    [Fact]
     public void Every_bad_cell_of_every_row_is_listed_with_its_location()
     {
         const string text = Header + "\n" +
