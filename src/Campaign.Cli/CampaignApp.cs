@@ -86,6 +86,7 @@ public sealed class CampaignApp
         root.Add(ModelCommand.Build(this));
         root.Add(EstimateCommand.Build(this));
         root.Add(SelectCommand.Build(this));
+        root.Add(PlanCommand.Build(this));
         root.Add(ForecastCommand.Build(this));
         root.Add(ReportCommand.Build(this));
         foreach (var command in TrackingCommands.Build(this))

@@ -115,11 +115,22 @@ public static class PlanStore
     }
 
     /// <summary>The newest plan, or null.</summary>
-    public static PlanVersion? Current(SqliteConnection connection, SqliteTransaction? transaction = null)
+    public static PlanVersion? Current(SqliteConnection connection, SqliteTransaction? transaction = null) =>
+        connection.ExecuteScalar<long?>("SELECT max(id) FROM plans", transaction: transaction) is { } id ? Version(connection, id, transaction) : null;
+
+    /// <summary>Every plan version's number and when it was saved, oldest first.</summary>
+    public static IReadOnlyList<(long Id, DateTimeOffset CreatedAt)> Versions(SqliteConnection connection) =>
+        connection.Query<(long Id, string CreatedAt)>("SELECT id, created_at FROM plans ORDER BY id")
+            .Select(v => (v.Id, DateTimeOffset.Parse(v.CreatedAt, CultureInfo.InvariantCulture)))
+            .ToList();
+
+    /// <summary>Plan version <paramref name="id"/>, or null when there is none.</summary>
+    public static PlanVersion? Version(SqliteConnection connection, long id, SqliteTransaction? transaction = null)
     {
         var plan = connection.QueryFirstOrDefault<PlanRow>(
-            "SELECT id AS Id, created_at AS CreatedAt, objective AS Objective, quantile AS Quantile, value AS Value, upper_bound AS UpperBound, method AS Method, source AS Source, carried_json AS CarriedJson, reserved_json AS ReservedJson FROM plans ORDER BY id DESC LIMIT 1",
-            transaction: transaction);
+            "SELECT id AS Id, created_at AS CreatedAt, objective AS Objective, quantile AS Quantile, value AS Value, upper_bound AS UpperBound, method AS Method, source AS Source, carried_json AS CarriedJson, reserved_json AS ReservedJson FROM plans WHERE id = @id",
+            new { id },
+            transaction);
         if (plan is null)
         {
             return null;
