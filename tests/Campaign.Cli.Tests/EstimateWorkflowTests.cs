@@ -61,7 +61,26 @@ public class EstimateWorkflowTests
         using var folder = Workspace();
         var md = CliRun.Of(folder.Path, "--dir", "ws", "estimate", "ws/candidates.csv", "--format", "md");
         Assert.Equal(0, md.ExitCode);
-        Assert.StartsWith("| id | level | kind | cluster |", md.Out);
+        Assert.StartsWith("| configuration | resolution | cluster |", md.Out);
+        // Each configuration's subtotal is the sum of its rows' medians, as the JSON gives them.
+        var runs = CliRun.Of(folder.Path, "--dir", "ws", "estimate", "ws/candidates.csv", "--json").Json().GetProperty("runs").EnumerateArray()
+            .GroupBy(r => r.GetProperty("id").GetString()!).ToDictionary(g => g.Key, g => g.Sum(r => Math.Round(r.GetProperty("median").GetDouble())));
+        var subtotals = md.Out.Split('\n').Where(l => l.StartsWith("| **", StringComparison.Ordinal)).ToList();
+        Assert.Equal(runs.Count(r => r.Value > 0), subtotals.Count);
+        foreach (var line in subtotals)
+        {
+            var cells = line.Split('|').Select(c => c.Trim().Trim('*')).ToArray();
+            var id = cells[1][..^" total".Length];
+            Assert.Equal(runs[id], double.Parse(cells[8].Replace(",", "", StringComparison.Ordinal), System.Globalization.CultureInfo.InvariantCulture), 0);
+        }
+
+        Assert.Contains("| halyard | ", md.Out);
+        Assert.Contains("| all clusters | ", md.Out);
+        var tex = CliRun.Of(folder.Path, "--dir", "ws", "estimate", "ws/candidates.csv", "--format", "tex");
+        Assert.Equal(0, tex.ExitCode);
+        var rows = tex.Out.Split('\n').TakeWhile(l => !l.StartsWith("\\end{tabular}", StringComparison.Ordinal)).Where(l => l.EndsWith("\\\\", StringComparison.Ordinal) || l.EndsWith("\\addlinespace", StringComparison.Ordinal)).ToList();
+        Assert.Equal(md.Out.Split('\n').Count(l => l.StartsWith("| sm-", StringComparison.Ordinal) || l.StartsWith("| **", StringComparison.Ordinal)) + 1, rows.Count); // the rows and the header
+        Assert.All(rows, r => Assert.Equal(10, System.Text.RegularExpressions.Regex.Matches(r, @"(?<!\\)&").Count));
         var csv = CliRun.Of(folder.Path, "--dir", "ws", "estimate", "ws/candidates.csv", "--format", "csv");
         Assert.Equal(0, csv.ExitCode);
         var lines = csv.Out.Split('\n', StringSplitOptions.RemoveEmptyEntries);

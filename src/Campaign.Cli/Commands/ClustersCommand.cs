@@ -66,7 +66,7 @@ internal static class ClustersCommand
             return;
         }
 
-        var table = new TextTable("cluster", "batch", "cores/node", "mem GB/node", "wall limit h", "charged as", "factor", "speed", "jobs queued/running", "queue wait h (median, p90)");
+        var table = new TextTable("cluster", "batch", "cores/node", "GB/node", "wall h", "charged as", "factor", "speed", "jobs q/run", "queue wait h");
         foreach (var p in profiles)
         {
             table.Add(
@@ -79,7 +79,7 @@ internal static class ClustersCommand
                 Format.Significant(p.ChargeFactor),
                 Format.Significant(p.RelativeSpeed),
                 Format.Integer(p.MaxJobsQueued) + "/" + Format.Integer(p.MaxJobsRunning),
-                Format.Significant(p.QueueWaitMedianHours) + ", " + Format.Significant(p.QueueWaitP90Hours));
+                Format.Significant(p.QueueWaitMedianHours) + " (p90 " + Format.Significant(p.QueueWaitP90Hours) + ")");
         }
 
         table.WriteTo(context.Out);

@@ -128,7 +128,7 @@ internal static class DemoCommand
             o.WriteLine("== 1. How long must each planned run be? (post-Newtonian inspiral + merger + ringdown)");
             var lengths = LengthCommand.ForFile(candidatesPath, "candidates.csv", config.Length, config.Defaults, config.DefaultCluster, clusters.Keys.ToList());
             LengthCommand.Write(Step("lengths"), lengths, config.Length);
-            Show("lengths", 10, l => l.StartsWith("Lengths", StringComparison.Ordinal) || !l.StartsWith("sm-", StringComparison.Ordinal));
+            Show("lengths", 10, l => !l.StartsWith("sm-", StringComparison.Ordinal));
             o.WriteLine();
 
             o.WriteLine("== 2. Import the group's past runs");
@@ -146,7 +146,7 @@ internal static class DemoCommand
             var estimateOptions = new EstimateOptions { EccentricityTrials = 2 };
             var estimate = new EstimateService(time).Estimate(new EstimateRequest(target, candidatesPath, "candidates.csv", estimateOptions));
             EstimateCommand.Write(Step("estimate"), estimate, "candidates.csv", "table");
-            Show("estimate", 14, l => l.StartsWith("Core-hours consumed", StringComparison.Ordinal));
+            Show("estimate", 14, l => !l.StartsWith("sm-", StringComparison.Ordinal));
             if (!context.Json)
             {
                 var proposal = new StringWriter();
@@ -160,7 +160,16 @@ internal static class DemoCommand
             o.WriteLine("== 5. Choose what to run within the allocations (coverage of the parameter space, costs at the 80th percentile) and save the plan");
             var selected = new PlanService(time).Select(new SelectRequest(target, candidatesPath, "candidates.csv", SelectionObjective.Coverage, null, 0.8, Array.Empty<string>(), null, 2, 1500, 10, Save: true));
             SelectCommand.Write(Step("select"), selected);
-            Show("select", 16, l => l.StartsWith("budget ", StringComparison.Ordinal));
+            Show("select", 16, l => l.StartsWith("cluster ", StringComparison.Ordinal));
+            o.WriteLine();
+
+            // A plan changes over a year: here two of the chosen configurations turn out to be covered by a
+            // collaboration, and the group re-plans without them (nothing has started, so nothing is carried).
+            var covered = selected.Report.Chosen.Where(c => !c.Must).Take(2).Select(c => c.Id).ToList();
+            o.WriteLine($"== 5b. A collaboration already has {string.Join(" and ", covered)}: re-plan without them, and compare the two plan versions");
+            new PlanService(time).Select(new SelectRequest(target, candidatesPath, "candidates.csv", SelectionObjective.Coverage, null, 0.8, covered, null, 2, 1500, 10, Save: true));
+            PlanCommand.WriteDiff(Step("plan-diff"), new PlanViews(time).Compare(target, null, null));
+            Show("plan-diff", 14, l => l.StartsWith("cluster ", StringComparison.Ordinal));
             o.WriteLine();
 
             o.WriteLine("== 6. Forecast: when will it finish, and will the allocation last?");
@@ -170,7 +179,7 @@ internal static class DemoCommand
 
             if (!context.Parse.GetValue(skipRun))
             {
-                o.WriteLine("== 7. Rehearse part of the plan, scaled down, on this machine's local runner (demo payload; seconds instead of weeks)");
+                o.WriteLine("== 7. Rehearse part of the plan, scaled down, on this computer's local runner (demo payload; seconds instead of weeks)");
                 var plan = new PlanService(time).Current(target)!;
                 var chosen = RehearsalSubset(plan);
                 o.WriteLine($"{chosen.Count} of the plan's {plan.ConfigIds.Count} configurations, every level, to keep the demo short: {string.Join(", ", chosen)}.");
@@ -221,8 +230,10 @@ internal static class DemoCommand
             o.WriteLine("Explore it:");
             o.WriteLine($"  ./campaign --dir {target} check");
             o.WriteLine($"  ./campaign --dir {target} model show");
+            o.WriteLine($"  ./campaign --dir {target} plan show");
+            o.WriteLine($"  ./campaign --dir {target} plan diff 1 2");
             o.WriteLine($"  ./campaign --dir {target} estimate {candidatesPath} --format md");
-            o.WriteLine($"  ./campaign --dir {target} select {candidatesPath} --objective value --budget 2000000");
+            o.WriteLine($"  ./campaign --dir {target} select {candidatesPath} --objective value --budget 2M");
             o.WriteLine($"  ./campaign --dir {target} length --q 4 --chi1z 0.5 --omega0 0.016");
             return ExitCodes.Ok;
         });

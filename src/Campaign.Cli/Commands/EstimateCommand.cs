@@ -17,8 +17,8 @@ internal static class EstimateCommand
     {
         var file = new Argument<string>("FILE") { Description = "Candidate file (CSV; columns in docs/formats.md)" };
         var interval = new Option<double>("--interval") { Description = "Central probability of the intervals (default 0.9)", DefaultValueFactory = _ => 0.9 };
-        var format = new Option<string>("--format") { Description = "table (default), md (Markdown for a proposal) or csv", DefaultValueFactory = _ => "table" };
-        Choices.Restrict(format, "table", "md", "csv");
+        var format = new Option<string>("--format") { Description = "table (default), md or tex (a proposal's resource table: per-configuration subtotals, totals per cluster against the allocation), or csv", DefaultValueFactory = _ => "table" };
+        Choices.Restrict(format, "table", "md", "tex", "csv");
         var margin = new Option<double>("--checkpoint-margin") { Description = "Hours of each job kept for writing the checkpoint (default 0.5)", DefaultValueFactory = _ => 0.5 };
         var trials = new Option<int>("--ecc-trials") { Description = "Eccentricity-reduction trial runs per configuration (default 0)" };
         var trialLength = new Option<double>("--ecc-length") { Description = "Simulated length of each trial run in M (default 1500)", DefaultValueFactory = _ => 1500 };
@@ -47,7 +47,7 @@ internal static class EstimateCommand
         return command;
     }
 
-    /// <summary>Writes an estimate in <paramref name="format"/> (table, md or csv; JSON with --json).</summary>
+    /// <summary>Writes an estimate in <paramref name="format"/> (table, md, tex or csv; JSON with --json).</summary>
     public static void Write(CommandContext context, EstimateResult result, string shown, string format)
     {
         var (estimate, modelId, storage, allocations) = (result.Estimate, result.ModelId, result.Storage, result.Allocations);
@@ -82,7 +82,10 @@ internal static class EstimateCommand
                 WriteCsv(WrappingWriter.Unwrapped(context.Out), estimate);
                 break;
             case "md":
-                WriteMarkdown(WrappingWriter.Unwrapped(context.Out), estimate, allocations, modelId, storage);
+                ProposalDocument.WriteMarkdown(WrappingWriter.Unwrapped(context.Out), result);
+                break;
+            case "tex":
+                ProposalDocument.WriteLatex(WrappingWriter.Unwrapped(context.Out), result);
                 break;
             default:
                 if (context.Detail)
@@ -183,29 +186,6 @@ internal static class EstimateCommand
                 o.WriteLine($"  {r.Id} res {r.Level}{(r.Kind == "ecc" ? " (eccentricity trials)" : "")}: {string.Join("; ", r.Extrapolation)}");
             }
         }
-    }
-
-    private static void WriteMarkdown(TextWriter o, ProposalEstimate e, IReadOnlyDictionary<string, double> allocations, long? modelId, StorageModel storage)
-    {
-        o.WriteLine("| " + string.Join(" | ", Header) + " |");
-        o.WriteLine("|" + string.Concat(Header.Select(_ => "---|")));
-        foreach (var r in e.Runs)
-        {
-            o.WriteLine("| " + string.Join(" | ", Cells(r)) + " |");
-        }
-
-        o.WriteLine();
-        o.WriteLine($"| total | median core-h | {Pct(e.Interval)} interval | charged median | charged interval | allocation core-h |");
-        o.WriteLine("|---|---|---|---|---|---|");
-        foreach (var (name, t) in e.ByCluster.Append(new KeyValuePair<string, EstimateTotal>("ALL", e.Total)))
-        {
-            var allocation = name == "ALL" ? allocations.Values.Sum() : allocations.GetValueOrDefault(name);
-            o.WriteLine($"| {name} | {Format.Fixed(t.Median, 0)} | {Format.Fixed(t.Low, 0)} .. {Format.Fixed(t.High, 0)} | {Format.Fixed(t.ChargedMedian, 0)} | {Format.Fixed(t.ChargedLow, 0)} .. {Format.Fixed(t.ChargedHigh, 0)} | {(allocation > 0 ? Format.Fixed(allocation, 0) : "-")} |");
-        }
-
-        o.WriteLine();
-        WriteNotes(o, e, modelId, storage);
-        o.WriteLine(Caution);
     }
 
     private static void WriteCsv(TextWriter o, ProposalEstimate e)

@@ -58,10 +58,13 @@ internal sealed record LengthRow(
 
     public static void WriteTable(TextWriter writer, IReadOnlyList<LengthRow> rows, bool detail = false)
     {
-        var table = new TextTable("id", "q", "chi_eff", "|chi1|", "|chi2|", "M*omega0", "orbits", "inspiral M", "total M", "M_f", "chi_f", "tau_220 M");
+        var table = detail
+            ? new TextTable("id", "q", "chi_eff", "|chi1|", "|chi2|", "M*omega0", "orbits", "inspiral M", "total M", "M_f", "chi_f", "tau_220 M")
+            : new TextTable("id", "q", "chi_eff", "|chi1|", "|chi2|", "M*omega0", "orbits", "total M", "M_f", "chi_f");
         foreach (var r in rows)
         {
-            table.Add(
+            var cells = new List<string>
+            {
                 r.Id,
                 Format.Significant(r.Q),
                 Format.Fixed(r.ChiEff, 3),
@@ -69,11 +72,19 @@ internal sealed record LengthRow(
                 Format.Fixed(Magnitude(r.Chi2), 3),
                 Format.Fixed(r.Omega0, 5),
                 Format.Fixed(r.InspiralOrbits, 1),
-                Format.Fixed(r.InspiralTimeM, 0),
-                Format.Fixed(r.TotalM, 0),
-                Format.Fixed(r.RemnantMass, 4),
-                Format.Fixed(r.RemnantSpin, 3),
-                Format.Fixed(r.RingdownDampingTimeM, 2));
+            };
+            if (detail)
+            {
+                cells.Add(Format.Fixed(r.InspiralTimeM, 0));
+            }
+
+            cells.AddRange(new[] { Format.Fixed(r.TotalM, 0), Format.Fixed(r.RemnantMass, 4), Format.Fixed(r.RemnantSpin, 3) });
+            if (detail)
+            {
+                cells.Add(Format.Fixed(r.RingdownDampingTimeM, 2));
+            }
+
+            table.Add(cells.ToArray());
         }
 
         table.WriteTo(writer);

@@ -46,7 +46,7 @@ internal static class Screen
     /// Renders <paramref name="renderable"/> onto <paramref name="writer"/>. Plain output has no trailing spaces and no
     /// blank first or last line.
     /// </summary>
-    public static void Write(TextWriter writer, IRenderable renderable, bool trimPlain = true)
+    public static void Write(TextWriter writer, IRenderable renderable, bool trimPlain = true, int minimumWidth = 0)
     {
         var buffer = new StringWriter();
         var console = AnsiConsole.Create(new AnsiConsoleSettings
@@ -56,7 +56,7 @@ internal static class Screen
             Interactive = InteractionSupport.No,
             Out = new AnsiConsoleOutput(buffer),
         });
-        console.Profile.Width = WidthOf(writer);
+        console.Profile.Width = Math.Max(WidthOf(writer), minimumWidth);
         console.Write(renderable);
         var lines = buffer.ToString().Replace("\r\n", "\n", StringComparison.Ordinal).Split('\n').Select(l => trimPlain ? l.TrimEnd() : l).ToList();
         while (lines.Count > 0 && lines[0].Trim().Length == 0)
@@ -69,9 +69,11 @@ internal static class Screen
             lines.RemoveAt(lines.Count - 1);
         }
 
+        // Laid out already: past any line wrapping.
+        var target = WrappingWriter.Unwrapped(writer);
         foreach (var line in lines)
         {
-            writer.WriteLine(line);
+            target.WriteLine(line);
         }
     }
 }

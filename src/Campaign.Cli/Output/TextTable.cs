@@ -54,11 +54,27 @@ internal sealed class TextTable
     public void WriteTo(TextWriter writer)
     {
         var framed = Screen.IsTerminal(writer);
+        var gap = framed ? 3 : 2; // padding and separator between columns
+        var natural = _header.Select((h, i) => Math.Max(h.Length, _rows.Count == 0 ? 0 : _rows.Max(r => r[i].Length))).ToArray();
+        var width = Screen.WidthOf(writer) - (framed ? 2 : 0);
+        var fixedWidth = natural.Where((_, i) => !_wrap.Contains(i)).Sum() + gap * natural.Length;
+        var wrapping = _wrap.Where(i => natural[i] > 0).ToList();
+        var widths = natural.ToArray();
+        if (fixedWidth + natural.Where((_, i) => _wrap.Contains(i)).Sum() > width && wrapping.Count > 0)
+        {
+            // Only the text columns give way: each gets an even share of the room left, at least 12 characters.
+            var share = Math.Max(12, (width - fixedWidth) / wrapping.Count);
+            foreach (var i in wrapping)
+            {
+                widths[i] = Math.Min(natural[i], share);
+            }
+        }
+
         var table = new Table { Border = framed ? TableBorder.Rounded : new PlainBorder(), Expand = false };
         for (var i = 0; i < _header.Length; i++)
         {
             var numeric = _rows.Count > 0 && _rows.All(r => IsNumeric(r[i]));
-            var column = new TableColumn(new Text(_header[i])) { Alignment = numeric ? Justify.Right : Justify.Left, NoWrap = !_wrap.Contains(i) };
+            var column = new TableColumn(new Text(_header[i])) { Alignment = numeric ? Justify.Right : Justify.Left, NoWrap = !_wrap.Contains(i), Width = widths[i] };
             column.Padding = framed ? new Padding(1, 0, 1, 0) : new Padding(0, 0, 1, 0);
             table.AddColumn(column);
         }
@@ -68,7 +84,9 @@ internal sealed class TextTable
             table.AddRow(row.Select(c => (IRenderable)new Text(c)).ToArray());
         }
 
-        Screen.Write(writer, table, trimPlain: !framed);
+        // A table whose fixed columns alone are wider than the screen is drawn whole rather than squeezed (numbers
+        // are never broken); the commands keep their default tables within the width.
+        Screen.Write(writer, table, trimPlain: !framed, minimumWidth: widths.Sum() + gap * widths.Length + (framed ? 4 : 2));
     }
 
     private static bool IsNumeric(string cell) =>
