@@ -2,17 +2,21 @@ using Campaign.Core.Forecast;
 
 namespace Campaign.Reports;
 
-/// <summary>An allocation as the burn-down shows it.</summary>
-public sealed record AllocationLine(string Cluster, DateTimeOffset Start, DateTimeOffset End, double CoreHours, double PlannedCoreHours);
+/// <summary>An allocation as the burn-down shows it, with the ends of its use-it-or-lose-it windows.</summary>
+public sealed record AllocationLine(string Cluster, DateTimeOffset Start, DateTimeOffset End, double CoreHours, double PlannedCoreHours, IReadOnlyList<DateTimeOffset>? WindowEnds = null);
 
 /// <summary>A charge that happened (one ended leg).</summary>
 public sealed record ChargePoint(string Cluster, DateTimeOffset At, double CoreHours);
 
-/// <summary>A run's simulated time against wall-clock.</summary>
-public sealed record ProgressLine(string RunId, double Target, IReadOnlyList<(DateTimeOffset At, double T)> Points);
+/// <summary>A run's simulated time against wall-clock, and the charged core-hours it still needs (what ranks it).</summary>
+public sealed record ProgressLine(string RunId, double Target, IReadOnlyList<(DateTimeOffset At, double T)> Points, double RemainingCost = 0);
 
-/// <summary>A configuration on the coverage map.</summary>
-public sealed record CoveragePoint(double Q, double ChiEff);
+/// <summary>A configuration on the coverage map: mass ratio, effective spin, in-plane spin (the larger of the two holes').</summary>
+public sealed record CoveragePoint(double Q, double ChiEff, double ChiPerp = 0)
+{
+    /// <summary>True when a spin has an in-plane component (the orbit precesses).</summary>
+    public bool Precessing => ChiPerp > 0;
+}
 
 /// <summary>A logged run as the cost-model check shows it: predicted median and interval against actual.</summary>
 /// <param name="Predicted">Predicted median core-hours.</param>

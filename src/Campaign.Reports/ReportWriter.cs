@@ -31,9 +31,10 @@ public static class ReportWriter
         LoadFont();
         var figures = new List<(string Name, string Title, string Caption)>
         {
-            ("burn-down", "Allocation burn-down", "Core-hours left in each allocation: the plan spread evenly over the period (dashed), what has been charged (solid), and the forecast's range of what will be left at each window's end (band, P10 to P90)."),
-            ("progress", "Progress of each run", "Simulated time reached (in M) against wall-clock time; each line is one run, ending at its target length when finished."),
-            ("coverage", "Coverage of the parameter space", "Mass ratio against effective spin: candidates, the configurations chosen for the plan, the runs finished, and those the group already had."),
+            ("burn-down", "Allocation burn-down", "Core-hours left in each allocation: the plan spread evenly over the period (dashed), what has been charged up to today (solid), the ends of the use-it-or-lose-it windows (dotted), and the forecast's range of what will be left at each window's end, from where the campaign stands (band, P10 to P90)."),
+            ("progress", "Progress of each run", "Simulated time reached (in M) against wall-clock time; each line is one run, ending at its target length when finished. The runs with the most core-hours still to come are named; the others are grey."),
+            ("coverage", "Coverage of the parameter space", "Mass ratio against effective spin: candidates, the configurations chosen for the plan, the runs the campaign finished (rehearsals are not counted), and those the group already had; precessing configurations have triangles and diamonds."),
+            ("coverage-spins", "Coverage of the spins", "The same configurations by effective spin and in-plane spin (the larger of the two holes'): aligned-spin configurations lie on the axis, precessing ones above it."),
             ("cost-model", "Cost model check", "Predicted against actual core-hours of the logged runs, with each prediction's 90% interval; points near the diagonal are well predicted."),
         };
         var files = new List<string>();
@@ -45,6 +46,7 @@ public static class ReportWriter
                 "burn-down" => BurnDown(data),
                 "progress" => Progress(data),
                 "coverage" => Coverage(data),
+                "coverage-spins" => Spins(data),
                 _ => ModelCheck(data),
             };
             Style(plot, title);
@@ -98,11 +100,27 @@ public static class ReportWriter
 
     private static double OaDate(DateTimeOffset at) => at.UtcDateTime.ToOADate();
 
+    /// <summary>
+    /// Dates on the bottom axis as ISO dates (2027-04-01), as everywhere else in the tool; with the time of day
+    /// (2027-04-01 13:30) when the plot spans less than <paramref name="days"/> is two days.
+    /// </summary>
+    private static void IsoDates(Plot plot, double days = double.PositiveInfinity)
+    {
+        var axis = plot.Axes.DateTimeTicksBottom();
+        var format = days < 2 ? "yyyy-MM-dd HH:mm" : "yyyy-MM-dd";
+        if (axis.TickGenerator is ScottPlot.TickGenerators.DateTimeAutomatic ticks)
+        {
+            ticks.LabelFormatter = d => d.ToString(format, System.Globalization.CultureInfo.InvariantCulture);
+        }
+        plot.XLabel("date (UTC)");
+    }
+
     private static Plot BurnDown(ReportData data)
     {
         var plot = new Plot();
         var palette = new[] { Teal, Plum, Amber, Ink };
         var k = 0;
+        var windowsShown = false;
         foreach (var allocation in data.Allocations)
         {
             var color = palette[k++ % palette.Length];
@@ -112,6 +130,8 @@ public static class ReportWriter
             planned.MarkerSize = 0;
             planned.LegendText = allocation.Cluster + ": plan";
 
+            // What has been charged, up to where the campaign stands (or the allocation's end): always drawn, so the
+            // legend names it even before the first charge.
             var charges = data.Charges.Where(c => c.Cluster == allocation.Cluster && c.At >= allocation.Start && c.At <= allocation.End).OrderBy(c => c.At).ToList();
             var xs = new List<double> { OaDate(allocation.Start) };
             var ys = new List<double> { allocation.CoreHours };
@@ -123,13 +143,26 @@ public static class ReportWriter
                 ys.Add(left);
             }
 
-            if (xs.Count > 1)
+            var stands = data.GeneratedAt < allocation.Start ? allocation.Start : data.GeneratedAt > allocation.End ? allocation.End : data.GeneratedAt;
+            xs.Add(OaDate(stands));
+            ys.Add(left);
+            var actual = plot.Add.Scatter(xs.ToArray(), ys.ToArray());
+            actual.Color = color;
+            actual.LineWidth = 2.5f;
+            actual.MarkerSize = 0;
+            actual.LegendText = allocation.Cluster + ": charged";
+
+            foreach (var end in (allocation.WindowEnds ?? Array.Empty<DateTimeOffset>()).Where(e => e < allocation.End))
             {
-                var actual = plot.Add.Scatter(xs.ToArray(), ys.ToArray());
-                actual.Color = color;
-                actual.LineWidth = 2.5f;
-                actual.MarkerSize = 0;
-                actual.LegendText = allocation.Cluster + ": charged";
+                var line = plot.Add.VerticalLine(OaDate(end));
+                line.Color = Stone;
+                line.LinePattern = LinePattern.Dotted;
+                line.LineWidth = 1;
+                if (!windowsShown)
+                {
+                    line.LegendText = "end of an allocation window";
+                    windowsShown = true;
+                }
             }
 
             if (data.Forecast is { } forecast)
@@ -137,7 +170,8 @@ public static class ReportWriter
                 var windows = forecast.Windows.Where(w => w.Cluster == allocation.Cluster).OrderBy(w => w.End).ToList();
                 if (windows.Count > 0)
                 {
-                    var bx = new List<double> { OaDate(data.GeneratedAt) };
+                    // The band starts where the campaign stands: the charge so far, today (or the allocation's start).
+                    var bx = new List<double> { OaDate(stands) };
                     var low = new List<double> { left };
                     var high = new List<double> { left };
                     double sumP10 = 0, sumP90 = 0;
@@ -158,60 +192,109 @@ public static class ReportWriter
             }
         }
 
-        plot.Axes.DateTimeTicksBottom();
+        IsoDates(plot);
         plot.YLabel("core-hours left");
         plot.ShowLegend();
         return plot;
     }
 
+    /// <summary>How many runs the progress plot names; the rest are drawn in grey as "others".</summary>
+    public const int NamedRuns = 6;
+
     private static Plot Progress(ReportData data)
     {
         var plot = new Plot();
-        var palette = new[] { Teal, Plum, Amber, Ink, Stone };
+        var palette = new[] { Teal, Plum, Amber, Ink, Color.FromHex("#3E6FB0"), Color.FromHex("#8A6D3B") };
+        var lines = data.Progress.Where(p => p.Points.Count > 1).ToList();
+        var named = lines.OrderByDescending(p => p.RemainingCost).ThenBy(p => p.RunId, StringComparer.Ordinal).Take(NamedRuns).Select(p => p.RunId).ToHashSet(StringComparer.Ordinal);
         var k = 0;
-        foreach (var line in data.Progress.Where(p => p.Points.Count > 1))
+        var othersShown = false;
+        foreach (var line in lines.OrderBy(p => named.Contains(p.RunId)))
         {
             var scatter = plot.Add.Scatter(line.Points.Select(p => OaDate(p.At)).ToArray(), line.Points.Select(p => p.T).ToArray());
-            scatter.Color = palette[k++ % palette.Length];
             scatter.MarkerSize = 3;
             scatter.LineWidth = 1.2f;
+            if (named.Contains(line.RunId))
+            {
+                scatter.Color = palette[k++ % palette.Length];
+                scatter.LegendText = line.RunId;
+            }
+            else
+            {
+                scatter.Color = Stone.WithAlpha(0.7);
+                if (!othersShown)
+                {
+                    scatter.LegendText = $"others ({lines.Count - named.Count} runs)";
+                    othersShown = true;
+                }
+            }
         }
 
-        if (k == 0)
+        if (lines.Count == 0)
         {
             plot.Add.Annotation("no run has started yet");
         }
+        else
+        {
+            plot.ShowLegend();
+            plot.Legend.Alignment = Alignment.UpperLeft;
+        }
 
-        plot.Axes.DateTimeTicksBottom();
+        var times = lines.SelectMany(l => l.Points).Select(p => p.At).ToList();
+        IsoDates(plot, times.Count == 0 ? double.PositiveInfinity : (times.Max() - times.Min()).TotalDays);
         plot.YLabel("simulated time t (M)");
         return plot;
+    }
+
+    private static void Points(Plot plot, IReadOnlyList<CoveragePoint> points, Func<CoveragePoint, double> x, Func<CoveragePoint, double> y, Color color, float size, MarkerShape aligned, MarkerShape precessing, string label)
+    {
+        foreach (var (group, shape, suffix) in new[] { (false, aligned, " (aligned)"), (true, precessing, " (precessing)") })
+        {
+            var chosen = points.Where(p => p.Precessing == group).ToList();
+            if (chosen.Count == 0)
+            {
+                continue;
+            }
+
+            var scatter = plot.Add.ScatterPoints(chosen.Select(x).ToArray(), chosen.Select(y).ToArray());
+            scatter.Color = color;
+            scatter.MarkerSize = size;
+            scatter.MarkerShape = shape;
+            scatter.LegendText = label + suffix;
+        }
     }
 
     private static Plot Coverage(ReportData data)
     {
         var plot = new Plot();
-        void Points(IReadOnlyList<CoveragePoint> points, Color color, float size, MarkerShape shape, string label)
-        {
-            if (points.Count == 0)
-            {
-                return;
-            }
-
-            var scatter = plot.Add.ScatterPoints(points.Select(p => p.Q).ToArray(), points.Select(p => p.ChiEff).ToArray());
-            scatter.Color = color;
-            scatter.MarkerSize = size;
-            scatter.MarkerShape = shape;
-            scatter.LegendText = label;
-        }
-
-        Points(data.Existing, Ink, 7, MarkerShape.Cross, "already had");
-        Points(data.Candidates, Stone, 9, MarkerShape.OpenCircle, "candidates");
-        Points(data.Chosen, Teal, 8, MarkerShape.FilledCircle, "chosen");
-        Points(data.Finished, Amber, 11, MarkerShape.OpenSquare, "finished");
+        AddCoverage(plot, data, p => p.Q, p => p.ChiEff);
         plot.XLabel("mass ratio q");
         plot.YLabel("effective spin chi_eff");
         plot.ShowLegend();
         return plot;
+    }
+
+    /// <summary>The second panel of the coverage map: the spins, so that precessing configurations are told apart.</summary>
+    private static Plot Spins(ReportData data)
+    {
+        var plot = new Plot();
+        AddCoverage(plot, data, p => p.ChiEff, p => p.ChiPerp);
+        plot.XLabel("effective spin chi_eff");
+        plot.YLabel("in-plane spin chi_perp (larger hole)");
+        plot.ShowLegend();
+        return plot;
+    }
+
+    /// <summary>
+    /// Candidates, the plan's choice, what the group already had and what the campaign finished (real runs only: a
+    /// rehearsal is not science); precessing configurations have markers of their own.
+    /// </summary>
+    private static void AddCoverage(Plot plot, ReportData data, Func<CoveragePoint, double> x, Func<CoveragePoint, double> y)
+    {
+        Points(plot, data.Existing, x, y, Ink, 7, MarkerShape.Cross, MarkerShape.Eks, "already had");
+        Points(plot, data.Candidates, x, y, Stone, 9, MarkerShape.OpenCircle, MarkerShape.OpenTriangleUp, "candidates");
+        Points(plot, data.Chosen, x, y, Teal, 8, MarkerShape.FilledCircle, MarkerShape.FilledTriangleUp, "chosen");
+        Points(plot, data.Finished, x, y, Amber, 11, MarkerShape.OpenSquare, MarkerShape.OpenDiamond, "finished");
     }
 
     private static Plot ModelCheck(ReportData data)

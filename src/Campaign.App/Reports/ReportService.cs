@@ -62,17 +62,19 @@ public sealed class ReportService
             new DateTimeOffset(a.Start.ToDateTime(TimeOnly.MinValue), TimeSpan.Zero),
             new DateTimeOffset(a.End.ToDateTime(TimeOnly.MaxValue), TimeSpan.Zero),
             a.CoreHours(workspace.Cluster(a.Cluster)),
-            plan?.Entries.Where(e => e.Cluster == a.Cluster).Sum(e => e.Estimate.ChargedCoreHours) ?? 0)).ToList();
+            plan?.Entries.Where(e => e.Cluster == a.Cluster).Sum(e => e.Estimate.ChargedCoreHours) ?? 0,
+            a.Windows.Select(w => new DateTimeOffset(w.End.ToDateTime(TimeOnly.MaxValue), TimeSpan.Zero)).ToList())).ToList();
+        var remaining = snapshot.Standing.Runs.Where(s => s.Run is not null).ToDictionary(s => s.Run!.RunId, s => s.RemainingCost, StringComparer.Ordinal);
         var starts = Store.TrackingStore.Legs(workspace.Connection).ToLookup(s => s.RunId, StringComparer.Ordinal);
         var progress = snapshot.Runs.Select(r =>
         {
             var points = starts[r.RunId].OrderBy(s => s.Number)
                 .Select(s => (s.SubmittedAt, s.StartT)).ToList();
             points.Add((r.FinishedAt ?? now, r.Progress));
-            return new ProgressLine(r.RunId, r.TargetLength, points);
+            return new ProgressLine(r.RunId, r.TargetLength, points, remaining.GetValueOrDefault(r.RunId));
         }).ToList();
 
-        static CoveragePoint Point(BinaryConfiguration c) => new(c.Q.Value, c.ChiEffective);
+        static CoveragePoint Point(BinaryConfiguration c) => new(c.Q.Value, c.ChiEffective, Math.Max(c.Chi1.InPlane, c.Chi2.InPlane));
         var proposal = new List<ProposalRow>();
         if (candidates.Count > 0 && (model is not null || candidates.All(c => c.CoreHours is not null)))
         {
