@@ -64,14 +64,14 @@ public class EstimateWorkflowTests
         Assert.StartsWith("| configuration | resolution | cluster |", md.Out);
         // Each configuration's subtotal is the sum of its rows' medians, as the JSON gives them.
         var runs = CliRun.Of(folder.Path, "--dir", "ws", "estimate", "ws/candidates.csv", "--json").Json().GetProperty("runs").EnumerateArray()
-            .GroupBy(r => r.GetProperty("id").GetString()!).ToDictionary(g => g.Key, g => g.Sum(r => Math.Round(r.GetProperty("median").GetDouble())));
+            .GroupBy(r => r.GetProperty("id").GetString()!).ToDictionary(g => g.Key, g => g.Sum(r => r.GetProperty("median").GetDouble()));
         var subtotals = md.Out.Split('\n').Where(l => l.StartsWith("| **", StringComparison.Ordinal)).ToList();
         Assert.Equal(runs.Count(r => r.Value > 0), subtotals.Count);
         foreach (var line in subtotals)
         {
             var cells = line.Split('|').Select(c => c.Trim().Trim('*')).ToArray();
             var id = cells[1][..^" total".Length];
-            Assert.Equal(runs[id], double.Parse(cells[8].Replace(",", "", StringComparison.Ordinal), System.Globalization.CultureInfo.InvariantCulture), 0);
+            Assert.InRange(double.Parse(cells[8].Replace(",", "", StringComparison.Ordinal), System.Globalization.CultureInfo.InvariantCulture) - runs[id], -0.5, 0.5);
         }
 
         Assert.Contains("| halyard | ", md.Out);

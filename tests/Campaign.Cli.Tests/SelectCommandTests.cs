@@ -76,13 +76,13 @@ public class SelectCommandTests
     [Fact]
     public void Re_planning_keeps_runs_that_have_started_names_them_and_takes_their_cost_off_the_budget()
     {
-        using var folder = Demo(); // the demo saved plan 1
+        using var folder = Demo(); // the demo saved plans 1 and 2 (a re-plan without two configurations)
         string started;
         using (var connection = new SqliteConnection($"Data Source={Path.Combine(folder.Path, "ws", "campaign.db")};Pooling=False"))
         {
             connection.Open();
             using var command = connection.CreateCommand();
-            command.CommandText = "SELECT config_id FROM plan_entries WHERE plan_id = 1 AND kind = 'run' ORDER BY config_id LIMIT 1";
+            command.CommandText = "SELECT config_id FROM plan_entries WHERE plan_id = 2 AND kind = 'run' ORDER BY config_id LIMIT 1";
             started = (string)command.ExecuteScalar()!;
         }
 
@@ -99,7 +99,7 @@ public class SelectCommandTests
         var run = CliRun.Of(folder.Path, "--dir", "ws", "select", "ws/candidates.csv", "--budget", "2500000", "--save", "--json");
         Assert.True(run.ExitCode == 0, run.Err);
         var json = run.Json();
-        Assert.Equal(2, json.GetProperty("plan_id").GetInt64());
+        Assert.Equal(3, json.GetProperty("plan_id").GetInt64());
         var carried = json.GetProperty("carried_over").EnumerateArray().ToList();
         Assert.Equal(started, Assert.Single(carried).GetProperty("config_id").GetString());
         Assert.Equal("workbench", carried[0].GetProperty("cluster").GetString());
@@ -108,7 +108,7 @@ public class SelectCommandTests
         Assert.Equal(remaining, json.GetProperty("reserved").EnumerateObject().Sum(p => p.Value.GetDouble()), 6); // nothing charged yet: the reserve is what it still needs
         Assert.True(json.GetProperty("cost").GetDouble() <= 2_500_000 - remaining + 1e-6);
         var text = CliRun.Of(folder.Path, "--dir", "ws", "status").Out;
-        Assert.Contains("Plan 2:", text);
+        Assert.Contains("Plan 3:", text);
 
         // Tracking the new plan adds the new runs only: the started ones are already there.
         var track = CliRun.Of(folder.Path, "--dir", "ws", "track", "--json").Json();

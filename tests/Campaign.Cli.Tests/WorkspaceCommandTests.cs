@@ -101,6 +101,11 @@ public class WorkspaceCommandTests
         var select = steps.GetProperty("select");
         Assert.Equal(1, select.GetProperty("plan_id").GetInt64());
         Assert.True(select.GetProperty("upper_bound").GetDouble() >= select.GetProperty("value").GetDouble());
+        // The demo re-plans once without two chosen configurations and compares the two versions.
+        var diff = steps.GetProperty("plan_diff");
+        Assert.Equal(1, diff.GetProperty("older").GetInt64());
+        Assert.Equal(2, diff.GetProperty("newer").GetInt64());
+        Assert.True(diff.GetProperty("dropped").GetArrayLength() >= 2);
         var forecast = steps.GetProperty("forecast");
         Assert.InRange(forecast.GetProperty("probability_fits").GetDouble(), 0, 1);
         Assert.Equal(1000, forecast.GetProperty("replicas").GetInt32());
@@ -120,7 +125,7 @@ public class WorkspaceCommandTests
         var plan = CliRun.Of(folder.Path, "--dir", "ws", "status", "--json").Json().GetProperty("plan");
         var left = plan.GetProperty("to_come").GetInt32() + plan.GetProperty("active").GetInt32() + plan.GetProperty("held").GetInt32();
         Assert.Equal(3, plan.GetProperty("active").GetInt32());
-        Assert.Equal($"plan 1: {left} runs left (3 tracked, {left - 3} to come; 0 finished)", json.GetProperty("source").GetString());
+        Assert.Equal($"plan 2: {left} runs left (3 tracked, {left - 3} to come; 0 finished)", json.GetProperty("source").GetString());
         Assert.Equal(left, json.GetProperty("runs_left").GetInt32());
         Assert.Equal(left, json.GetProperty("runs").GetArrayLength());
         var workbench = json.GetProperty("runs").EnumerateArray().Where(r => r.GetProperty("cluster").GetString() == "workbench").Select(r => r.GetProperty("id").GetString()).Order(StringComparer.Ordinal);

@@ -168,8 +168,8 @@ internal static class DemoCommand
             var covered = selected.Report.Chosen.Where(c => !c.Must).Take(2).Select(c => c.Id).ToList();
             o.WriteLine($"== 5b. A collaboration already has {string.Join(" and ", covered)}: re-plan without them, and compare the two plan versions");
             new PlanService(time).Select(new SelectRequest(target, candidatesPath, "candidates.csv", SelectionObjective.Coverage, null, 0.8, covered, null, 2, 1500, 10, Save: true));
-            PlanCommand.WriteDiff(Step("plan-diff"), new PlanViews(time).Compare(target, null, null));
-            Show("plan-diff", 14, l => l.StartsWith("cluster ", StringComparison.Ordinal));
+            PlanCommand.WriteDiff(Step("plan_diff"), new PlanViews(time).Compare(target, null, null));
+            Show("plan_diff", 14, l => l.StartsWith("cluster ", StringComparison.Ordinal));
             o.WriteLine();
 
             o.WriteLine("== 6. Forecast: when will it finish, and will the allocation last?");
