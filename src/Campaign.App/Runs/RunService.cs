@@ -197,7 +197,7 @@ public sealed class RunService
 
         foreach (var id in selection.Ids.Where(id => !runs.ContainsKey(id)))
         {
-            problems.Add($"{id}: no such tracked run: expected one of {string.Join(", ", runs.Keys.Take(10))}{(runs.Count > 10 ? " ..." : "")}");
+            problems.Add($"{id}: no such tracked run: expected one of {string.Join(", ", runs.Keys.Take(10))}{(runs.Count > 10 ? $", ... and {runs.Count - 10} more" : "")}");
         }
 
         foreach (var id in selection.Ids.Where(runs.ContainsKey).Where(id => !eligible(runs[id].State)))

@@ -133,7 +133,7 @@ internal static class DemoCommand
 
             o.WriteLine("== 2. Import the group's past runs");
             var imported = new RunLogService(time).Import(new ImportLogsRequest(target, logsPath, "run-logs.csv", Replace: false));
-            o.WriteLine($"run-logs.csv: {imported.Added} runs imported; {imported.Total} in the workspace.");
+            o.WriteLine($"run-logs.csv: {Format.Count(imported.Added, "run")} imported; {Format.Integer(imported.Total)} in the workspace.");
             o.WriteLine();
 
             o.WriteLine("== 3. Fit the cost model to them");
@@ -182,7 +182,7 @@ internal static class DemoCommand
                 o.WriteLine("== 7. Rehearse part of the plan, scaled down, on this computer's local runner (demo payload; seconds instead of weeks)");
                 var plan = new PlanService(time).Current(target)!;
                 var chosen = RehearsalSubset(plan);
-                o.WriteLine($"{chosen.Count} of the plan's {plan.ConfigIds.Count} configurations, every level, to keep the demo short: {string.Join(", ", chosen)}.");
+                o.WriteLine($"{chosen.Count} of the plan's {Format.Count(plan.ConfigIds.Count, "configuration")}, every resolution, to keep the demo short: {string.Join(", ", chosen)}.");
                 o.WriteLine("A rehearsal's runs are its own: the plan's runs stay to do, and the rehearsal's costs stay out of the run logs.");
                 var tracked = new TrackService(time).Track(new TrackRequest(target, "workbench", 1, chosen.ToHashSet(StringComparer.Ordinal), Rehearsal: true));
                 TrackingCommands.WriteTracked(Step("track"), tracked, rehearsal: true);

@@ -180,7 +180,7 @@ internal static class EstimateCommand
         var flagged = e.Runs.Where(r => r.Extrapolation.Count > 0).ToList();
         if (flagged.Count > 0)
         {
-            o.WriteLine($"EXTRAPOLATION: {flagged.Count} rows lie outside the logged runs; treat them with extra care:");
+            o.WriteLine($"EXTRAPOLATION: {Format.Count(flagged.Count, "row")} lie outside the logged runs; treat them with extra care:");
             foreach (var r in flagged)
             {
                 o.WriteLine($"  {r.Id} res {r.Level}{(r.Kind == "ecc" ? " (eccentricity trials)" : "")}: {string.Join("; ", r.Extrapolation)}");

@@ -25,7 +25,7 @@ internal static class LogsCommand
             }
             else
             {
-                context.Out.WriteLine($"Imported {shown}: {result.Added} runs added, {result.Replaced} replaced; {total} runs in the workspace.");
+                context.Out.WriteLine($"Imported {shown}: {Format.Count(result.Added, "run")} added, {Format.Integer(result.Replaced)} replaced; {Format.Count(total, "run")} in the workspace.");
                 context.Out.WriteLine("Next: campaign model fit");
             }
 
@@ -69,7 +69,7 @@ internal static class LogsCommand
             }
 
             table.WriteTo(context.Out);
-            context.Out.WriteLine($"{logs.Count} runs.");
+            context.Out.WriteLine($"{Format.Count(logs.Count, "run")}.");
             return ExitCodes.Ok;
         });
         command.Add(list);

@@ -83,7 +83,7 @@ internal static class ModelCommand
             return;
         }
 
-        o.WriteLine($"Cost model {id} ({fittedAt}): ln(core-hours x cluster speed) fitted on {model.RunCount} runs ({model.RunsSkipped} skipped: failed, or partial without t_end).");
+        o.WriteLine($"Cost model {id} ({fittedAt}): ln(core-hours x cluster speed) fitted on {Format.Count(model.RunCount, "run")} ({model.RunsSkipped} skipped: failed, or partial without t_end).");
         o.WriteLine($"Fit: {(model.Robust ? "Huber robust regression (IRLS)" : "least squares (QR)")}{(model.UsedPrior ? "; FEW LOGS: blended with prior exponents (see docs/cost-model.md), intervals are wider" : "")}.");
         o.WriteLine($"Chosen feature set: {model.FeatureSet} (simplest within one standard error of the best {model.Folds}-fold CV error).");
         o.WriteLine();
@@ -107,12 +107,12 @@ internal static class ModelCommand
         o.WriteLine($"Cross-validated: median |error| {Format.Fixed(model.CvMedianAbsPctError, 1)}%, {Format.Fixed(model.CvIntervalLevel * 100, 0)}% intervals covered {Format.Fixed(model.CvIntervalCoverage * 100, 1)}% of held-out runs.");
         if (model.Influential.Length > 0)
         {
-            o.WriteLine("Influential runs (Cook's distance > 4/n): " + string.Join(", ", model.Influential.Take(10).Select(r => $"{r.RunId} ({Format.Fixed(r.CooksDistance, 3)})")));
+            o.WriteLine("Influential runs (Cook's distance > 4/n): " + Format.List(model.Influential.Select(r => $"{r.RunId} ({Format.Fixed(r.CooksDistance, 3)})"), 10));
         }
 
         if (model.DownWeighted.Length > 0)
         {
-            o.WriteLine("Down-weighted runs (robust weight, cost against the fit): " + string.Join(", ", model.DownWeighted.Take(10).Select(r => $"{r.RunId} ({Format.Fixed(r.Weight, 2)}, {(r.ResidualPct >= 0 ? "+" : "")}{Format.Fixed(r.ResidualPct, 0)}%)")));
+            o.WriteLine("Down-weighted runs (robust weight, cost against the fit): " + Format.List(model.DownWeighted.Select(r => $"{r.RunId} ({Format.Fixed(r.Weight, 2)}, {(r.ResidualPct >= 0 ? "+" : "")}{Format.Fixed(r.ResidualPct, 0)}%)"), 10));
         }
 
         o.WriteLine("These are statistical estimates from the group's own history; the allocating site's charging rules decide what is charged.");

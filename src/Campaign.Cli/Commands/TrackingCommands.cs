@@ -67,7 +67,7 @@ internal static class TrackingCommands
         context.Out.WriteLine($"Tracking {result.Added.Count} {kind} from plan {result.PlanId}{(result.AlreadyTracked.Count > 0 ? $" ({result.AlreadyTracked.Count} already tracked)" : "")}.");
         foreach (var run in result.Added)
         {
-            context.Out.WriteLine($"  {run.RunId} on {run.Cluster}, {run.Cores} cores, target {Format.Fixed(run.TargetLength, 0)} M");
+            context.Out.WriteLine($"  {run.RunId} on {run.Cluster}, {Format.Count(run.Cores, "core")}, target {Format.Fixed(run.TargetLength, 0)} M");
         }
 
         context.Out.WriteLine("Next: campaign tick (one cycle, e.g. from cron) or campaign watch (a daemon).");
@@ -177,7 +177,7 @@ internal static class TrackingCommands
             context.Out.WriteLine($"{c.RunId}: {c.From.Name()} -> {c.To.Name()}");
         }
 
-        context.Out.WriteLine($"{changes.Count} runs {verb}.");
+        context.Out.WriteLine($"{Format.Count(changes.Count, "run")} {verb}.");
         return ExitCodes.Ok;
     }
 
@@ -223,7 +223,7 @@ internal static class TrackingCommands
 
         if (status.Plan is { } p)
         {
-            o.WriteLine($"Plan {p.PlanId}: {p.ToCome} runs to come, {p.Active} active, {p.Held} held, {p.Finished} finished, {p.Abandoned} given up{(p.Rehearsals > 0 ? $"; {p.Rehearsals} rehearsal runs beside it" : "")}.");
+            o.WriteLine($"Plan {p.PlanId}: {Format.Count(p.ToCome, "run")} to come, {p.Active} active, {p.Held} held, {p.Finished} finished, {p.Abandoned} given up{(p.Rehearsals > 0 ? $"; {Format.Count(p.Rehearsals, "rehearsal run")} beside it" : "")}.");
         }
 
         if (status.Runs.Count == 0)

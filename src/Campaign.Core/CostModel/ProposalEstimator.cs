@@ -28,7 +28,7 @@ public static class ProposalEstimator
         {
             throw new InvalidInputException(new[]
             {
-                $"no cost model in the workspace and {missingModel.Count} candidates without core_hours ({string.Join(", ", missingModel.Take(5))}{(missingModel.Count > 5 ? ", ..." : "")}): expected 'campaign logs import' and 'campaign model fit' first, or a core_hours column",
+                $"no cost model in the workspace and {missingModel.Count} candidates without core_hours ({string.Join(", ", missingModel.Take(5))}{(missingModel.Count > 5 ? $", ... and {missingModel.Count - 5} more" : "")}): expected 'campaign logs import' and 'campaign model fit' first, or a core_hours column",
             });
         }
 

@@ -8,10 +8,9 @@ namespace Campaign.Core.Tests.Lifecycle;
 /// <summary>Where plan runs stand is derived from the tracked runs; a rehearsal never stands in for a plan run.</summary>
 public class CampaignStandingTests
 {
-    private static readonly BinaryConfiguration Binary = new(MassRatio.From(2), Spin.Zero, Spin.Zero, 0.02);
+    private static readonly BinaryConfiguration Binary = Some.Binary;
 
-    private static PlanEntry Entry(string config, int level, double cost) =>
-        new(Binary, new EstimateRow(config, level, "run", "box", 64, 1000, cost, cost, cost, cost, 10, 1, 10, cost, cost, 1, 1, "model", Array.Empty<string>(), 0.1, 30, 1), cost, 1000);
+    private static PlanEntry Entry(string config, int level, double cost) => Some.Entry(config, level, cost);
 
     private static RunRecord Run(string id, RunState state, double progress = 0, bool rehearsal = false, string cluster = "box") =>
         new(id, id.Split('.')[0], int.Parse(id.Split('.')[1][3..], System.Globalization.CultureInfo.InvariantCulture), cluster, 64, Binary, 1000, state, "", rehearsal, progress, null);

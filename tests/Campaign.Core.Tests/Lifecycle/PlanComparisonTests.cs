@@ -1,15 +1,10 @@
-using Campaign.Core.CostModel;
-using Campaign.Core.Domain;
 using Campaign.Core.Lifecycle;
 
 namespace Campaign.Core.Tests.Lifecycle;
 
 public class PlanComparisonTests
 {
-    private static readonly BinaryConfiguration Binary = new(MassRatio.From(2), Spin.Zero, Spin.Zero, 0.02);
-
-    private static PlanEntry Entry(string config, int level, double cost, string cluster = "box") =>
-        new(Binary, new EstimateRow(config, level, "run", cluster, 64, 1000, cost, cost, cost, cost, 10, 1, 10, cost, cost, 1, 1, "model", Array.Empty<string>(), 0.1, 30, 1), cost, 1000);
+    private static PlanEntry Entry(string config, int level, double cost, string cluster = "box") => Some.Entry(config, level, cost, cluster);
 
     private static PlanVersion Plan(long id, PlanEntry[] entries, params CarriedConfiguration[] carried) =>
         new(id, DateTimeOffset.UnixEpoch.AddDays(id), "coverage", 0.8, 0.5, 1, "m", "c.csv", entries, carried, new Dictionary<string, double>());
