@@ -98,4 +98,22 @@ public class PlanStoreTests
         Assert.Equal("a.res1.r1", connection.ExecuteScalar<string>("SELECT run_id FROM run_events"));
         Assert.Equal("ok", connection.ExecuteScalar<string>("PRAGMA foreign_key_check") ?? "ok");
     }
+
+    [Fact]
+    public void Upgrading_to_schema_9_renames_machines_to_clusters_inside_the_stored_model_and_plan_too()
+    {
+        using var folder = new TempFolder();
+        var path = folder.File("c.db");
+        using (var old = CampaignDatabase.Open(path, FixedTime.Default, Migrations.All.Take(8).ToList()))
+        {
+            // As System.Text.Json wrote them before: '+' escaped, the per-cluster factors and counts under their former names.
+            old.Execute("""INSERT INTO cost_models (fitted_at, run_count, model_json) VALUES ('x', 3, '{"FeatureSet":"\u002Bspin\u002Bcores\u002Bmachine","Terms":["intercept","machine:halyard"],"Machines":{"halyard":3}}')""");
+            old.Execute("""INSERT INTO plans (created_at, objective, quantile, value, upper_bound, method, pools_json, source, carried_json) VALUES ('2027-01-01T00:00:00Z', 'coverage', 0.5, 1, 1, 'm', '[]', 'c.csv', '[{"ConfigId":"a","Machine":"halyard","RemainingCost":5,"Why":"w"}]')""");
+        }
+
+        using var connection = CampaignDatabase.Open(path, FixedTime.Default);
+        var model = connection.ExecuteScalar<string>("SELECT model_json FROM cost_models")!;
+        Assert.Equal("""{"FeatureSet":"\u002Bspin\u002Bcores\u002Bcluster","Terms":["intercept","cluster:halyard"],"Clusters":{"halyard":3}}""", model);
+        Assert.Equal("halyard", PlanStore.Current(connection)!.Carried.Single().Cluster);
+    }
 }
