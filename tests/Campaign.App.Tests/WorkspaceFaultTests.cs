@@ -1,3 +1,4 @@
+using Campaign.Batch;
 using Campaign.App.Plans;
 using Campaign.App.Runs;
 using Campaign.App.Tests.Support;
@@ -153,6 +154,44 @@ public sealed class WorkspaceFaultTests : IDisposable
         Assert.Equal(new[] { 1, 2 }, legs.Select(s => s.Number));
         Assert.Equal(LegPhase.Ended, legs[0].Phase);
         Assert.False(WorkspaceBackup.NeedsJobLookup(db.Connection));
+    }
+
+    [Fact]
+    public void After_an_upgraded_backup_is_restored_a_job_named_the_former_way_is_found_and_not_submitted_again()
+    {
+        // Schema 9 renamed runs (".L1" to ".res1") and legs; jobs given to a batch system before the upgrade keep
+        // their former names. A backup from before the upgrade, restored later, must still find them by name.
+        Runs.Cycle(A); // leg 1 of c1.res1
+        var backup = new WorkspaceAdmin(_clock).Backup(A, Path.Combine(_folder.Path, "backup"));
+        _clock.Advance(TimeSpan.FromHours(49));
+        Runs.Cycle(A); // leg 2 submitted
+        string workspaceId;
+        using (var db = Workspace.Open(A, _clock))
+        {
+            workspaceId = db.Id;
+        }
+
+        // As the former version named them: the run was c1.L1 and its legs ".sNNN".
+        _clusters["halyard"].Rename(JobName.For(workspaceId, "c1.res1", 2), JobName.Former(workspaceId, "c1.L1", 2));
+        using (var restored = new Microsoft.Data.Sqlite.SqliteConnection($"Data Source={Path.Combine(backup.Destination, "campaign.db")};Pooling=False"))
+        {
+            restored.Open();
+            Dapper.SqlMapper.Execute(restored, "UPDATE tracked_runs SET former_id = 'c1.L1' WHERE run_id = 'c1.res1'");
+        }
+
+        foreach (var side in new[] { "campaign.db-wal", "campaign.db-shm" })
+        {
+            File.Delete(Path.Combine(A, side));
+        }
+
+        File.Copy(Path.Combine(backup.Destination, "campaign.db"), Path.Combine(A, "campaign.db"), overwrite: true);
+        var report = Runs.Cycle(A);
+
+        Assert.Contains(report.Messages, m => m.StartsWith("after a restore: 1 jobs submitted after the backup were found by name", StringComparison.Ordinal));
+        var names = _clusters["halyard"].SubmittedNames.Where(n => n.Contains(".c1.", StringComparison.Ordinal)).ToList();
+        Assert.Equal(2, names.Count); // nothing submitted again
+        using var after = Workspace.Open(A, _clock);
+        Assert.Equal(JobName.Former(workspaceId, "c1.L1", 2), TrackingStore.LegsOf(after.Connection, "c1.res1")[1].JobName);
     }
 
     [Fact]

@@ -78,6 +78,15 @@ public sealed class SimulatedCluster : IBatchSystem
         return Task.FromResult(id);
     }
 
+    /// <summary>Gives the jobs named <paramref name="from"/> the name <paramref name="to"/> (as a former version of the tool named them).</summary>
+    public void Rename(string from, string to)
+    {
+        foreach (var job in _jobs.Values.Where(j => j.Request.Name == from))
+        {
+            job.Request = job.Request with { Name = to };
+        }
+    }
+
     public Task<IReadOnlyDictionary<string, JobStatus>> QueryAsync(IReadOnlyCollection<string> jobIds, CancellationToken cancellationToken)
     {
         Check();
@@ -227,7 +236,7 @@ public sealed class SimulatedCluster : IBatchSystem
     {
         public string Id { get; } = id;
 
-        public JobRequest Request { get; } = request;
+        public JobRequest Request { get; set; } = request;
 
         public DateTimeOffset Submitted { get; } = submitted;
 
