@@ -163,9 +163,10 @@ internal static class DemoCommand
             Show("select", 16, l => l.StartsWith("cluster ", StringComparison.Ordinal));
             o.WriteLine();
 
-            // A plan changes over a year: here two of the chosen configurations turn out to be covered by a
-            // collaboration, and the group re-plans without them (nothing has started, so nothing is carried).
-            var covered = selected.Report.Chosen.Where(c => !c.Must).Take(2).Select(c => c.Id).ToList();
+            // A plan changes over a year: here the two chosen configurations that add the least coverage turn out to
+            // be covered by a collaboration, and the group re-plans without them (nothing has started, so nothing is
+            // carried; what the budget frees may buy others).
+            var covered = selected.Report.Chosen.Where(c => !c.Must).OrderBy(c => c.Gain).ThenBy(c => c.Id, StringComparer.Ordinal).Take(2).Select(c => c.Id).ToList();
             o.WriteLine($"== 5b. A collaboration already has {string.Join(" and ", covered)}: re-plan without them, and compare the two plan versions");
             new PlanService(time).Select(new SelectRequest(target, candidatesPath, "candidates.csv", SelectionObjective.Coverage, null, 0.8, covered, null, 2, 1500, 10, Save: true));
             PlanCommand.WriteDiff(Step("plan_diff"), new PlanViews(time).Compare(target, null, null));

@@ -113,10 +113,23 @@ internal static class PlanCommand
         if (changed.Count > 0)
         {
             o.WriteLine();
-            var table = new TextTable("configuration", "change", "cluster", $"cost in {c.Older.Id}", $"cost in {c.Newer.Id}", "note").Wrap("note");
+            var notes = changed.Any(d => d.Why.Length > 0);
+            var headers = new List<string> { "configuration", "change", "cluster", $"cost in {c.Older.Id}", $"cost in {c.Newer.Id}" };
+            if (notes)
+            {
+                headers.Add("what had happened");
+            }
+
+            var table = notes ? new TextTable(headers.ToArray()).Wrap("what had happened") : new TextTable(headers.ToArray());
             foreach (var d in changed)
             {
-                table.Add(d.ConfigId, Words(d.Change), d.Cluster, d.Change == PlanChange.Added ? "-" : Format.Fixed(d.OldCost, 0), d.Change == PlanChange.Dropped ? "-" : Format.Fixed(d.NewCost, 0), d.Why);
+                var cells = new List<string> { d.ConfigId, Words(d.Change), d.Cluster, d.Change == PlanChange.Added ? "-" : Format.Fixed(d.OldCost, 0), d.Change == PlanChange.Dropped ? "-" : Format.Fixed(d.NewCost, 0) };
+                if (notes)
+                {
+                    cells.Add(d.Why);
+                }
+
+                table.Add(cells.ToArray());
             }
 
             table.WriteTo(o);
