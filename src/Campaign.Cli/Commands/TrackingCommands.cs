@@ -198,6 +198,7 @@ internal static class TrackingCommands
                     State = v.Run.State.Name(),
                     v.Run.Reason,
                     v.Run.Cluster,
+                    BatchSystem = status.BatchSystems.GetValueOrDefault(v.Run.Cluster), // whose words native_state is
                     v.Run.Cores,
                     v.Run.Rehearsal,
                     Progress = v.Run.Progress,
