@@ -229,13 +229,14 @@ internal static class DemoCommand
 
             o.WriteLine($"Open {Path.Combine(target, "report", "report.html")} in a browser.");
             o.WriteLine("Explore it:");
-            o.WriteLine($"  ./campaign --dir {target} check");
-            o.WriteLine($"  ./campaign --dir {target} model show");
-            o.WriteLine($"  ./campaign --dir {target} plan show");
-            o.WriteLine($"  ./campaign --dir {target} plan diff 1 2");
-            o.WriteLine($"  ./campaign --dir {target} estimate {candidatesPath} --format md");
-            o.WriteLine($"  ./campaign --dir {target} select {candidatesPath} --objective value --budget 2M");
-            o.WriteLine($"  ./campaign --dir {target} length --q 4 --chi1z 0.5 --omega0 0.016");
+            var commands = WrappingWriter.Unwrapped(o); // commands to copy stay on one line each
+            commands.WriteLine($"  ./campaign --dir {target} check");
+            commands.WriteLine($"  ./campaign --dir {target} model show");
+            commands.WriteLine($"  ./campaign --dir {target} plan show");
+            commands.WriteLine($"  ./campaign --dir {target} plan diff 1 2");
+            commands.WriteLine($"  ./campaign --dir {target} estimate {candidatesPath} --format md");
+            commands.WriteLine($"  ./campaign --dir {target} select {candidatesPath} --objective value --budget 2M");
+            commands.WriteLine($"  ./campaign --dir {target} length --q 4 --chi1z 0.5 --omega0 0.016");
             return ExitCodes.Ok;
         });
         return command;

@@ -38,7 +38,8 @@ internal static class InitCommand
                     context.Out.WriteLine("  " + Path.GetRelativePath(target, file));
                 }
 
-                context.Out.WriteLine("Next: edit campaign.toml (name, clusters, allocations); for a cluster, copy clusters/cluster.toml.example to clusters/NAME.toml and fill it in; then `campaign --dir " + target + " check`.");
+                context.Out.WriteLine("Next: edit campaign.toml (name, clusters, allocations); for a cluster, copy clusters/cluster.toml.example to clusters/NAME.toml and fill it in; then check the workspace:");
+                WrappingWriter.Unwrapped(context.Out).WriteLine($"  campaign --dir {target} check");
             }
 
             return ExitCodes.Ok;
