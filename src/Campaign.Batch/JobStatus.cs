@@ -10,6 +10,7 @@ namespace Campaign.Batch;
 /// <param name="ChargedCores">Cores it was charged for, when known.</param>
 /// <param name="Name">Job name, when known.</param>
 /// <param name="Source">Where the final information came from (for example "scontrol", "sacct", "jobcomp file").</param>
+/// <param name="WorkingDirectory">The folder the job ran in, when the batch system says (it tells whose job it is).</param>
 public sealed record JobStatus(
     string JobId,
     JobState State,
@@ -19,7 +20,8 @@ public sealed record JobStatus(
     TimeSpan? Elapsed = null,
     int? ChargedCores = null,
     string? Name = null,
-    string? Source = null)
+    string? Source = null,
+    string? WorkingDirectory = null)
 {
     /// <summary>A job the batch system does not know.</summary>
     public static JobStatus MissingFor(string jobId) => new(jobId, JobState.Vanished, "not found");

@@ -186,7 +186,9 @@ public sealed class SlurmBatchSystem : IBatchSystem
 
         if (await JobCompletionFile(cancellationToken).ConfigureAwait(false) is { } file && File.Exists(file))
         {
-            var record = SlurmParsers.KeyValueRecords(await File.ReadAllTextAsync(file, cancellationToken).ConfigureAwait(false), "jobcomp file").LastOrDefault(s => s.Name == jobName);
+            // The completion file keeps every user's jobs: a record of that name in another folder is not ours either.
+            var record = SlurmParsers.KeyValueRecords(await File.ReadAllTextAsync(file, cancellationToken).ConfigureAwait(false), "jobcomp file")
+                .LastOrDefault(s => s.Name == jobName && Ours(s.WorkingDirectory ?? ""));
             return record?.JobId;
         }
 

@@ -84,7 +84,7 @@ public static class SlurmParsers
             TimeSpan? elapsed = values.TryGetValue("RunTime", out var run) ? Duration(run) : Elapsed(values);
             var cpus = values.TryGetValue("NumCPUs", out var n) ? Integer(n) : values.TryGetValue("ProcCnt", out var p) ? Integer(p) : null;
             var name = values.TryGetValue("JobName", out var jn) ? jn : values.GetValueOrDefault("Name");
-            statuses.Add(new JobStatus(id, SlurmStates.Parse(state), state, exit, signal, elapsed, cpus, name, source));
+            statuses.Add(new JobStatus(id, SlurmStates.Parse(state), state, exit, signal, elapsed, cpus, name, source, values.GetValueOrDefault("WorkDir")));
         }
 
         return statuses;

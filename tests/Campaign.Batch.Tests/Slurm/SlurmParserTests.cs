@@ -53,7 +53,7 @@ public class SlurmParserTests
         // Captured from jobcomp/filetxt on Slurm 22.05.
         const string output = "JobId=1 UserId=root(0) GroupId=root(0) Name=j.sh JobState=FAILED Partition=test TimeLimit=UNLIMITED StartTime=2026-12-01T18:06:05 EndTime=2026-12-01T18:06:15 NodeList=vm NodeCnt=1 ProcCnt=1 WorkDir=/work/main ReservationName= Tres=cpu=1,mem=2000M,node=1,billing=1 Account= QOS= WcKey= Cluster=unknown SubmitTime=2026-12-01T18:06:02 EligibleTime=2026-12-01T18:06:02 DerivedExitCode=0:0 ExitCode=3:0\n";
         var status = Assert.Single(SlurmParsers.KeyValueRecords(output, "jobcomp file"));
-        Assert.Equal(new JobStatus("1", JobState.Crashed, "FAILED", 3, 0, TimeSpan.FromSeconds(10), 1, "j.sh", "jobcomp file"), status);
+        Assert.Equal(new JobStatus("1", JobState.Crashed, "FAILED", 3, 0, TimeSpan.FromSeconds(10), 1, "j.sh", "jobcomp file", "/work/main"), status); // WorkDir: whose job it is
     }
 
     [Fact]
