@@ -24,6 +24,20 @@ public class WorkspaceCommandTests
     }
 
     [Fact]
+    public void The_cluster_template_init_writes_is_a_valid_profile_once_uncommented()
+    {
+        using var folder = new TempFolder();
+        Assert.Equal(0, CliRun.Of(folder.Path, "init", "ws").ExitCode);
+        var fields = File.ReadAllLines(folder.File("ws/clusters/cluster.toml.example"))
+            .SkipWhile(l => !l.StartsWith("# name = ", StringComparison.Ordinal))
+            .Select(l => l[2..].Replace("\"NAME\"", "\"lanyard\"", StringComparison.Ordinal));
+        File.WriteAllLines(folder.File("ws/clusters/lanyard.toml"), fields);
+        var check = CliRun.Of(folder.Path, "--dir", "ws", "clusters", "check", "ws/clusters/lanyard.toml");
+        Assert.True(check.ExitCode == 0, check.Err);
+        Assert.Equal(2, CliRun.Of(folder.Path, "--dir", "ws", "clusters", "--json").Json().GetProperty("clusters").GetArrayLength()); // the .example is not read as a profile
+    }
+
+    [Fact]
     public void A_workspace_written_with_the_former_names_is_read_and_check_names_each_one_to_rename()
     {
         using var folder = new TempFolder();
