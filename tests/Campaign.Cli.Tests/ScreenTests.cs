@@ -22,10 +22,14 @@ public sealed class ScreenTests : IDisposable
 
     private CliRun Run(params string[] args) => CliRun.Of(_folder.Path, new[] { "--dir", "ws" }.Concat(args).ToArray());
 
+    /// <summary>The demo's full candidate list (120 rows, larger costs and longer ids than the small one).</summary>
+    private static string Full => Path.Combine(RepositoryRoot.Path, "demo-campaign", "candidates.csv");
+
     public static TheoryData<string> Screens => new()
     {
         "status", "select ws/candidates.csv", "model fit", "model show", "estimate ws/candidates.csv", "length --candidates ws/candidates.csv",
         "length --q 4 --chi1z 0.5 --omega0 0.016", "forecast --replicas 200", "plan show", "plan diff", "check", "clusters", "logs list",
+        "estimate " + Full + " --ecc-trials 2", "select " + Full + " --quantile 0.8", "length --candidates " + Full,
     };
 
     [Theory]

@@ -84,8 +84,10 @@ internal static class DemoCommand
                     return context;
                 }
 
+                // A step's text is laid out as a command's would be (prose wrapped, tables within the width), then
+                // shown as it is.
                 steps[name] = new StringWriter();
-                return context with { Out = steps[name] };
+                return context with { Out = context.Json ? steps[name] : new WrappingWriter(steps[name], Screen.Width) };
             }
 
             void Show(string name, int head = 0, Func<string, bool>? tailFrom = null)
@@ -96,25 +98,27 @@ internal static class DemoCommand
                     return;
                 }
 
+                var shown = WrappingWriter.Unwrapped(context.Out);
+
                 var file = Path.Combine(outputs, name + ".txt");
                 File.WriteAllText(file, text);
                 var lines = text.TrimEnd('\n').Split('\n');
                 var tail = tailFrom is null || head >= lines.Length ? -1 : Array.FindIndex(lines, head, l => tailFrom(l));
                 if (tail < 0 || tail <= head + 3)
                 {
-                    context.Out.Write(text);
+                    shown.Write(text);
                     return;
                 }
 
                 foreach (var line in lines.Take(head))
                 {
-                    context.Out.WriteLine(line);
+                    shown.WriteLine(line);
                 }
 
-                context.Out.WriteLine($"  ... {tail - head} more lines: {file}");
+                shown.WriteLine($"  ... {tail - head} more lines: {file}");
                 foreach (var line in lines.Skip(tail))
                 {
-                    context.Out.WriteLine(line);
+                    shown.WriteLine(line);
                 }
             }
 

@@ -143,7 +143,7 @@ internal static class EstimateCommand
     private static void WriteShort(TextWriter o, ProposalEstimate e, IReadOnlyDictionary<string, double> allocations, long? modelId)
     {
         var interval = $"{Pct(e.Interval)} interval";
-        var table = new TextTable("id", "res", "cluster", "cores", "core-h", interval, "wall h", "legs", "flags");
+        var table = new TextTable("id", "res", "cluster", "cores", "core-h", interval, "wall h", "legs", "flags").Wrap("flags");
         foreach (var r in e.Runs)
         {
             var flags = new[] { r.Kind == "ecc" ? "ecc trials" : "", r.Source == "given" ? "given" : "", r.Extrapolation.Count > 0 ? "beyond logs" : "" };
