@@ -45,8 +45,8 @@ public static class ReportWriter
             {
                 "burn-down" => BurnDown(data),
                 "progress" => Progress(data),
-                "coverage" => Coverage(data),
-                "coverage-spins" => Spins(data),
+                "coverage" => CoverageMap(data, p => p.Q, "mass ratio q", p => p.ChiEff, "effective spin chi_eff"),
+                "coverage-spins" => CoverageMap(data, p => p.ChiEff, "effective spin chi_eff", p => p.ChiPerp, "in-plane spin chi_perp (larger hole)"),
                 _ => ModelCheck(data),
             };
             Style(plot, title);
@@ -264,23 +264,16 @@ public static class ReportWriter
         }
     }
 
-    private static Plot Coverage(ReportData data)
+    /// <summary>
+    /// A panel of the coverage map: mass ratio against effective spin, or (the second panel) the spins, so that
+    /// precessing configurations are told apart.
+    /// </summary>
+    private static Plot CoverageMap(ReportData data, Func<CoveragePoint, double> x, string xLabel, Func<CoveragePoint, double> y, string yLabel)
     {
         var plot = new Plot();
-        AddCoverage(plot, data, p => p.Q, p => p.ChiEff);
-        plot.XLabel("mass ratio q");
-        plot.YLabel("effective spin chi_eff");
-        plot.ShowLegend();
-        return plot;
-    }
-
-    /// <summary>The second panel of the coverage map: the spins, so that precessing configurations are told apart.</summary>
-    private static Plot Spins(ReportData data)
-    {
-        var plot = new Plot();
-        AddCoverage(plot, data, p => p.ChiEff, p => p.ChiPerp);
-        plot.XLabel("effective spin chi_eff");
-        plot.YLabel("in-plane spin chi_perp (larger hole)");
+        AddCoverage(plot, data, x, y);
+        plot.XLabel(xLabel);
+        plot.YLabel(yLabel);
         plot.ShowLegend();
         return plot;
     }
