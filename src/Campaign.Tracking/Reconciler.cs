@@ -17,15 +17,21 @@ namespace Campaign.Tracking;
 public sealed class Reconciler
 {
     private readonly Workspace _workspace;
-    private readonly IReadOnlyDictionary<string, IBatchSystem> _batch;
+    private readonly IReadOnlyDictionary<string, ClusterLink> _links;
     private readonly TimeProvider _time;
     private readonly IReadOnlyDictionary<string, string> _jobEnvironment;
 
     /// <summary>Creates the reconciler over an open workspace, with one batch system per cluster.</summary>
     public Reconciler(Workspace workspace, IReadOnlyDictionary<string, IBatchSystem> batch, TimeProvider time, IReadOnlyDictionary<string, string>? jobEnvironment = null)
+        : this(workspace, batch.ToDictionary(p => p.Key, p => ClusterLink.Local(p.Value, workspace.Root), StringComparer.Ordinal), time, jobEnvironment)
+    {
+    }
+
+    /// <summary>Creates the reconciler over an open workspace, with one link (batch system and run-folder site) per cluster.</summary>
+    public Reconciler(Workspace workspace, IReadOnlyDictionary<string, ClusterLink> links, TimeProvider time, IReadOnlyDictionary<string, string>? jobEnvironment = null)
     {
         _workspace = workspace;
-        _batch = batch;
+        _links = links;
         _time = time;
         _jobEnvironment = jobEnvironment ?? new Dictionary<string, string>();
     }
@@ -33,7 +39,7 @@ public sealed class Reconciler
     /// <summary>Runs one cycle.</summary>
     public async Task<TickReport> TickAsync(CancellationToken cancellationToken)
     {
-        var c = new CycleContext(_workspace, _batch, _time, _jobEnvironment);
+        var c = new CycleContext(_workspace, _links, _time, _jobEnvironment);
         await RecoverAfterRestore.RunAsync(c, cancellationToken).ConfigureAwait(false);
         await RecoverIntents.RunAsync(c, cancellationToken).ConfigureAwait(false);
         await ObserveJobs.RunAsync(c, cancellationToken).ConfigureAwait(false);

@@ -41,7 +41,7 @@ public sealed class CycleStepTests : IDisposable
 
     public void Dispose() => _folder.Dispose();
 
-    private CycleContext Context(Workspace workspace) => new(workspace, _clusters.ToDictionary(m => m.Key, m => (IBatchSystem)m.Value), _clock, new Dictionary<string, string>());
+    private CycleContext Context(Workspace workspace) => new(workspace, _clusters.ToDictionary(m => m.Key, m => Campaign.Tracking.ClusterLink.Local(m.Value, workspace.Root)), _clock, new Dictionary<string, string>());
 
     [Fact]
     public async Task Recover_intents_finds_a_submission_the_batch_system_has_and_drops_one_it_never_got()

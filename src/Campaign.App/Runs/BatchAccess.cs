@@ -12,9 +12,9 @@ namespace Campaign.App.Runs;
 /// </summary>
 public sealed class BatchAccess
 {
-    private readonly Func<string, IReadOnlyDictionary<string, Core.Domain.ClusterProfile>, TimeProvider, IReadOnlyDictionary<string, IBatchSystem>> _create;
+    private readonly Func<string, IReadOnlyDictionary<string, Core.Domain.ClusterProfile>, TimeProvider, IReadOnlyDictionary<string, ClusterLink>> _create;
 
-    private BatchAccess(Func<string, IReadOnlyDictionary<string, Core.Domain.ClusterProfile>, TimeProvider, IReadOnlyDictionary<string, IBatchSystem>> create, IReadOnlyDictionary<string, string> jobEnvironment)
+    private BatchAccess(Func<string, IReadOnlyDictionary<string, Core.Domain.ClusterProfile>, TimeProvider, IReadOnlyDictionary<string, ClusterLink>> create, IReadOnlyDictionary<string, string> jobEnvironment)
     {
         _create = create;
         JobEnvironment = jobEnvironment;
@@ -25,12 +25,12 @@ public sealed class BatchAccess
 
     /// <summary>The real adapters; <paramref name="inside"/> wraps each inside the decorator (fault injection in tests).</summary>
     public static BatchAccess Real(SupervisorCommand supervisor, IReadOnlyDictionary<string, string> jobEnvironment, RetryOptions? retry = null, Func<string, IBatchSystem, IBatchSystem>? inside = null) =>
-        new((root, clusters, time) => BatchSystemFactory.Create(root, clusters, supervisor, retry ?? RetryOptions.Default, time, inside), jobEnvironment);
+        new((root, clusters, time) => BatchSystemFactory.Links(root, clusters, supervisor, retry ?? RetryOptions.Default, time, inside), jobEnvironment);
 
     /// <summary>Systems the host gives, one per cluster name.</summary>
     public static BatchAccess Given(Func<string, IBatchSystem> systemFor, IReadOnlyDictionary<string, string>? jobEnvironment = null) =>
-        new((_, clusters, _) => clusters.Keys.ToDictionary(m => m, systemFor, StringComparer.Ordinal), jobEnvironment ?? new Dictionary<string, string>());
+        new((root, clusters, _) => clusters.Keys.ToDictionary(m => m, m => ClusterLink.Local(systemFor(m), root), StringComparer.Ordinal), jobEnvironment ?? new Dictionary<string, string>());
 
-    /// <summary>The batch systems of an open workspace.</summary>
-    internal IReadOnlyDictionary<string, IBatchSystem> For(Workspace workspace, TimeProvider time) => _create(workspace.Root, workspace.Clusters, time);
+    /// <summary>How the clusters of an open workspace are reached (batch system, run-folder site, ssh).</summary>
+    internal IReadOnlyDictionary<string, ClusterLink> For(Workspace workspace, TimeProvider time) => _create(workspace.Root, workspace.Clusters, time);
 }

@@ -149,8 +149,9 @@ public sealed class RunService
     /// looked up by name first; an intent the batch system does not have is dropped. An intent that cannot be
     /// looked up now stays, and the next cycle cancels it if it turns up (a given-up run never comes back).
     /// </summary>
-    private static void Settle(Workspace workspace, Microsoft.Data.Sqlite.SqliteTransaction tx, Batch.IBatchSystem batch, TrackedRun run)
+    private static void Settle(Workspace workspace, Microsoft.Data.Sqlite.SqliteTransaction tx, ClusterLink link, TrackedRun run)
     {
+        var batch = link.Batch;
         foreach (var leg in TrackingStore.LegsOf(workspace.Connection, run.RunId, tx).Where(s => s.IsOpen))
         {
             var id = leg.JobId;
@@ -158,7 +159,7 @@ public sealed class RunService
             {
                 try
                 {
-                    id = batch.FindAsync(leg.JobName, Path.Combine(workspace.Root, run.Folder), CancellationToken.None).GetAwaiter().GetResult();
+                    id = batch.FindAsync(leg.JobName, link.Site.PathOf(run.Folder), CancellationToken.None).GetAwaiter().GetResult();
                 }
                 catch (Batch.BatchSystemException)
                 {

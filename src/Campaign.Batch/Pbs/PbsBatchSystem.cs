@@ -13,10 +13,14 @@ namespace Campaign.Batch.Pbs;
 public sealed class PbsBatchSystem : IBatchSystem
 {
     private readonly PbsOptions _options;
-    private readonly CommandRunner _runner = new();
+    private readonly IShell _runner;
 
-    /// <summary>Creates the adapter.</summary>
-    public PbsBatchSystem(PbsOptions options) => _options = options;
+    /// <summary>Creates the adapter; its commands run through <paramref name="shell"/> (this host when null).</summary>
+    public PbsBatchSystem(PbsOptions options, IShell? shell = null)
+    {
+        _options = options;
+        _runner = shell ?? new LocalShell();
+    }
 
     /// <summary>The qsub arguments for a request (the script last).</summary>
     public IReadOnlyList<string> SubmitArguments(JobRequest request)
@@ -74,7 +78,7 @@ public sealed class PbsBatchSystem : IBatchSystem
             return found;
         }
 
-        var result = await _runner.RunAsync(Command("qstat"), new[] { "-x", "-f" }.Concat(jobIds), cancellationToken).ConfigureAwait(false);
+        var result = await _runner.RunAsync(Command("qstat"), new[] { "-x", "-f" }.Concat(jobIds).ToList(), cancellationToken).ConfigureAwait(false);
         var unknown = PbsParsers.UnknownIds(result.StandardError);
         if (result.ExitCode != 0 && unknown.Count == 0)
         {
@@ -121,7 +125,7 @@ public sealed class PbsBatchSystem : IBatchSystem
         return result.StandardOutput.Split('\n', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries).LastOrDefault();
     }
 
-    private string Command(string name) => _options.CommandFolder is { } folder ? Path.Combine(folder, name) : name;
+    private string Command(string name) => _options.CommandFolder is { } folder ? folder.TrimEnd('/') + "/" + name : name;
 
     private static BatchSystemException Classify(string command, CommandResult result)
     {

@@ -14,8 +14,11 @@ public sealed class CommandRunner
     /// <summary>Creates a runner that adds <paramref name="environment"/> to every command's environment.</summary>
     public CommandRunner(IReadOnlyDictionary<string, string>? environment = null) => _environment = environment ?? new Dictionary<string, string>();
 
-    /// <summary>Runs <paramref name="fileName"/> with <paramref name="arguments"/>; extra environment for this call in <paramref name="environment"/>.</summary>
-    public async Task<CommandResult> RunAsync(string fileName, IEnumerable<string> arguments, CancellationToken cancellationToken, IReadOnlyDictionary<string, string>? environment = null, string? workingDirectory = null)
+    /// <summary>
+    /// Runs <paramref name="fileName"/> with <paramref name="arguments"/>; extra environment for this call in
+    /// <paramref name="environment"/>; <paramref name="input"/> written to its standard input (closed after).
+    /// </summary>
+    public async Task<CommandResult> RunAsync(string fileName, IEnumerable<string> arguments, CancellationToken cancellationToken, IReadOnlyDictionary<string, string>? environment = null, string? workingDirectory = null, string? input = null)
     {
         var start = new ProcessStartInfo(fileName)
         {
@@ -23,6 +26,7 @@ public sealed class CommandRunner
             RedirectStandardOutput = true,
             RedirectStandardError = true,
             RedirectStandardInput = true,
+            StandardInputEncoding = new System.Text.UTF8Encoding(false),
             UseShellExecute = false,
         };
         foreach (var argument in arguments)
@@ -50,9 +54,9 @@ public sealed class CommandRunner
             throw new BatchSystemException(BatchErrorKind.Permanent, $"cannot run {fileName}: {e.Message} (is it installed and on PATH?)", e);
         }
 
-        process.StandardInput.Close();
         var output = process.StandardOutput.ReadToEndAsync(CancellationToken.None);
         var error = process.StandardError.ReadToEndAsync(CancellationToken.None);
+        await WriteInput(process, input).ConfigureAwait(false);
         try
         {
             await process.WaitForExitAsync(cancellationToken).ConfigureAwait(false);
@@ -71,5 +75,22 @@ public sealed class CommandRunner
         }
 
         return new CommandResult(process.ExitCode, await output.ConfigureAwait(false), await error.ConfigureAwait(false));
+    }
+
+    private static async Task WriteInput(Process process, string? input)
+    {
+        try
+        {
+            if (input is { Length: > 0 })
+            {
+                await process.StandardInput.WriteAsync(input).ConfigureAwait(false);
+            }
+
+            process.StandardInput.Close();
+        }
+        catch (IOException)
+        {
+            // The command ended without reading all its input; its exit code and output say why.
+        }
     }
 }

@@ -37,4 +37,11 @@ public static class ShellQuote
 
         return line.ToString();
     }
+
+    /// <summary>
+    /// A command for a person to copy: words made only of characters no shell treats specially stay bare, the others
+    /// are quoted as by <see cref="Word"/>.
+    /// </summary>
+    public static string Display(IEnumerable<string> words) =>
+        string.Join(" ", words.Select(w => w.Length > 0 && w.All(c => char.IsAsciiLetterOrDigit(c) || "_./=:@%+,-".Contains(c, StringComparison.Ordinal)) ? w : Word(w)));
 }

@@ -29,12 +29,13 @@ public sealed class SlurmBatchSystem : IBatchSystem
     };
 
     private readonly SlurmOptions _options;
-    private readonly CommandRunner _runner;
+    private readonly IShell _runner;
+    private readonly IReadOnlyDictionary<string, string> _environment;
     private string? _jobCompletionFile;
     private bool _jobCompletionFileKnown;
 
-    /// <summary>Creates the adapter.</summary>
-    public SlurmBatchSystem(SlurmOptions options)
+    /// <summary>Creates the adapter; its commands run through <paramref name="shell"/> (this host when null).</summary>
+    public SlurmBatchSystem(SlurmOptions options, IShell? shell = null)
     {
         _options = options;
         var environment = new Dictionary<string, string>();
@@ -43,7 +44,8 @@ public sealed class SlurmBatchSystem : IBatchSystem
             environment["SLURM_CONF"] = config;
         }
 
-        _runner = new CommandRunner(environment);
+        _environment = environment;
+        _runner = shell ?? new LocalShell();
         _jobCompletionFile = options.JobCompletionFile;
         _jobCompletionFileKnown = options.JobCompletionFile is not null;
     }
@@ -184,10 +186,10 @@ public sealed class SlurmBatchSystem : IBatchSystem
             }
         }
 
-        if (await JobCompletionFile(cancellationToken).ConfigureAwait(false) is { } file && File.Exists(file))
+        if (await JobCompletionFile(cancellationToken).ConfigureAwait(false) is { } file && await _runner.ReadFileAsync(file, cancellationToken).ConfigureAwait(false) is { } completions)
         {
             // The completion file keeps every user's jobs: a record of that name in another folder is not ours either.
-            var record = SlurmParsers.KeyValueRecords(await File.ReadAllTextAsync(file, cancellationToken).ConfigureAwait(false), "jobcomp file")
+            var record = SlurmParsers.KeyValueRecords(completions, "jobcomp file")
                 .LastOrDefault(s => s.Name == jobName && Ours(s.WorkingDirectory ?? ""));
             return record?.JobId;
         }
@@ -214,18 +216,8 @@ public sealed class SlurmBatchSystem : IBatchSystem
         }
 
         var left = ids.Where(id => !results.ContainsKey(id)).ToList();
-        if (left.Count > 0 && await JobCompletionFile(cancellationToken).ConfigureAwait(false) is { } file && File.Exists(file))
+        if (left.Count > 0 && await JobCompletionFile(cancellationToken).ConfigureAwait(false) is { } file && await _runner.ReadFileAsync(file, cancellationToken).ConfigureAwait(false) is { } text)
         {
-            string text;
-            try
-            {
-                text = await File.ReadAllTextAsync(file, cancellationToken).ConfigureAwait(false);
-            }
-            catch (IOException e)
-            {
-                throw new BatchSystemException(BatchErrorKind.Transient, $"cannot read the job-completion file {file}: {e.Message}", e);
-            }
-
             foreach (var status in SlurmParsers.KeyValueRecords(text, "jobcomp file").Where(s => left.Contains(s.JobId)))
             {
                 results[status.JobId] = status; // the last record of a job wins (a requeued job has several)
@@ -274,8 +266,9 @@ public sealed class SlurmBatchSystem : IBatchSystem
     private async Task<CommandResult> Run(string command, IReadOnlyList<string> arguments, CancellationToken cancellationToken, IReadOnlyDictionary<string, string>? environment = null, bool allowFailure = false)
     {
         CommandsRun++;
-        var file = _options.CommandFolder is { } folder ? Path.Combine(folder, command) : command;
-        var result = await _runner.RunAsync(file, arguments, cancellationToken, environment).ConfigureAwait(false);
+        var file = _options.CommandFolder is { } folder ? folder.TrimEnd('/') + "/" + command : command;
+        var all = environment is null ? _environment : _environment.Concat(environment).GroupBy(p => p.Key).ToDictionary(g => g.Key, g => g.Last().Value);
+        var result = await _runner.RunAsync(file, arguments, cancellationToken, all).ConfigureAwait(false);
         if (result.ExitCode != 0 && !allowFailure)
         {
             throw Classify(command, result);

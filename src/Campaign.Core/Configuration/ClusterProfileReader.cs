@@ -13,7 +13,14 @@ public static partial class ClusterProfileReader
         "name", "description", "batch_system", "cores_per_node", "memory_per_node_gb", "wall_limit_hours",
         "charge_whole_nodes", "charge_factor", "relative_speed", "max_jobs_queued", "max_jobs_running",
         "queue_wait_median_hours", "queue_wait_p90_hours", "partition", "account",
+        "site", "login_host", "run_root", "ssh_config", "requires_master",
     };
+
+    /// <summary>Allowed login hosts: what the error message says.</summary>
+    public const string HostRule = "a Host name from your OpenSSH configuration, or user@host: 1 to 255 letters, digits, '.', '-', '_', ':' or '@', not starting with '-'";
+
+    /// <summary>Allowed remote run roots: what the error message says.</summary>
+    public const string RunRootRule = "an absolute folder on the remote site (starting with '/'), without control characters";
 
     /// <summary>Allowed partition (queue) and account names: what the error message says.</summary>
     public const string SiteNameRule = "1 to 64 characters: letters, digits, '.', '-' or '_', starting with a letter or digit";
@@ -61,6 +68,7 @@ public static partial class ClusterProfileReader
 
         var partition = SiteName("partition");
         var account = SiteName("account");
+        var remote = Remote(fields, source, name);
         if (running > queued)
         {
             fields.Problem("max_jobs_running", $"at most max_jobs_queued = {queued}");
@@ -83,11 +91,58 @@ public static partial class ClusterProfileReader
             _ => BatchSystemKind.Local,
         };
         return new ClusterProfile(name!, description, kind, (int)coresPerNode!.Value, memory!.Value, wall!.Value, wholeNodes!.Value,
-            chargeFactor, speed, (int)queued, (int)running, waitMedian, waitP90, partition, account);
+            chargeFactor, speed, (int)queued, (int)running, waitMedian, waitP90, partition, account, remote);
+    }
+
+    private static RemoteAccess? Remote(TomlFields fields, string source, string? name)
+    {
+        var site = fields.String("site", required: false);
+        var host = fields.String("login_host", required: false, HostRule);
+        if (host is not null && !HostPattern().IsMatch(host))
+        {
+            fields.Problem("login_host", HostRule);
+            host = null;
+        }
+
+        var root = fields.String("run_root", required: host is not null && fields.Table.Contains("login_host"), RunRootRule);
+        if (root is not null && (!root.StartsWith('/') || root.Any(char.IsControl)))
+        {
+            fields.Problem("run_root", RunRootRule);
+            root = null;
+        }
+
+        var config = fields.String("ssh_config", required: false, "a path to an OpenSSH configuration file");
+        var master = fields.Boolean("requires_master", required: false);
+        if (!fields.Table.Contains("login_host"))
+        {
+            foreach (var field in new[] { "run_root", "ssh_config", "requires_master" }.Where(fields.Table.Contains))
+            {
+                fields.Problem(field, "only with login_host (a cluster reached over SSH); remove it, or add login_host");
+            }
+
+            return null;
+        }
+
+        if (host is null || root is null)
+        {
+            return null;
+        }
+
+        if (config is not null)
+        {
+            config = config.StartsWith("~/", StringComparison.Ordinal)
+                ? Path.Combine(Environment.GetFolderPath(Environment.SpecialFolder.UserProfile), config[2..])
+                : Path.GetFullPath(config, Path.GetDirectoryName(Path.GetFullPath(source)) ?? ".");
+        }
+
+        return new RemoteAccess(host, root.Length > 1 ? root.TrimEnd('/') : root, config, master ?? false, site ?? host);
     }
 
     /// <summary>True when <paramref name="name"/> is a valid cluster name.</summary>
     public static bool IsValidName(string name) => NamePattern().IsMatch(name);
+
+    [GeneratedRegex("^[A-Za-z0-9_][A-Za-z0-9._:@-]{0,254}\\z")]
+    private static partial Regex HostPattern();
 
     [GeneratedRegex("^[A-Za-z0-9][A-Za-z0-9._-]{0,63}\\z")]
     private static partial Regex SiteNamePattern();

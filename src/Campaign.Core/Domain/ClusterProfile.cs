@@ -19,6 +19,8 @@ namespace Campaign.Core.Domain;
 /// <param name="QueueWaitP90Hours">90th percentile of the queue wait, hours.</param>
 /// <param name="Partition">Slurm partition or PBS queue to submit to; null for the site's default.</param>
 /// <param name="Account">Project account charged; null for the user's default.</param>
+/// <param name="Remote">How the cluster is reached over SSH; null for a cluster whose batch commands and run folders
+/// are on the host the tracker runs on.</param>
 public sealed record ClusterProfile(
     string Name,
     string Description,
@@ -34,8 +36,12 @@ public sealed record ClusterProfile(
     double QueueWaitMedianHours,
     double QueueWaitP90Hours,
     string? Partition = null,
-    string? Account = null)
+    string? Account = null,
+    RemoteAccess? Remote = null)
 {
+    /// <summary>The site shown in status and check: the remote site's name, or "this host".</summary>
+    public string Site => Remote?.Site ?? "this host";
+
     /// <summary>Nodes a job of <paramref name="cores"/> cores occupies.</summary>
     public int NodesFor(int cores) => (cores + CoresPerNode - 1) / CoresPerNode;
 
@@ -49,3 +55,15 @@ public sealed record ClusterProfile(
         return elapsedHours * chargedCores * ChargeFactor;
     }
 }
+
+/// <summary>
+/// How a remote cluster is reached: through the system OpenSSH client, to a host name from the user's own OpenSSH
+/// configuration (so jump hosts, user names, keys and certificates work as the user set them up).
+/// </summary>
+/// <param name="Host">The ssh destination: a Host name from the OpenSSH configuration (or user@host).</param>
+/// <param name="RunRoot">Absolute folder on the remote site under which the run folders live.</param>
+/// <param name="SshConfig">An OpenSSH configuration file to use instead of the user's own (~/.ssh/config); null for the user's.</param>
+/// <param name="RequiresMaster">True for a site where the user opens a master connection by hand (multi-factor
+/// login): the tracker never logs in by itself and waits for that connection.</param>
+/// <param name="Site">Name of the site or centre, shown in status and check.</param>
+public sealed record RemoteAccess(string Host, string RunRoot, string? SshConfig, bool RequiresMaster, string Site);

@@ -1,7 +1,9 @@
 using System.Globalization;
 using Campaign.Batch;
 using Campaign.Core.Tracking;
+using Campaign.Core.Lifecycle;
 using Campaign.Store;
+using Campaign.Tracking.Sites;
 using Microsoft.Data.Sqlite;
 
 namespace Campaign.Tracking.Cycle;
@@ -12,10 +14,10 @@ namespace Campaign.Tracking.Cycle;
 /// </summary>
 internal sealed class CycleContext
 {
-    public CycleContext(Workspace workspace, IReadOnlyDictionary<string, IBatchSystem> batch, TimeProvider time, IReadOnlyDictionary<string, string> jobEnvironment)
+    public CycleContext(Workspace workspace, IReadOnlyDictionary<string, ClusterLink> links, TimeProvider time, IReadOnlyDictionary<string, string> jobEnvironment)
     {
         Workspace = workspace;
-        BatchSystems = batch;
+        Links = links;
         Time = time;
         JobEnvironment = jobEnvironment;
         Runs = TrackingStore.Runs(workspace.Connection).ToDictionary(r => r.RunId, StringComparer.Ordinal);
@@ -23,7 +25,13 @@ internal sealed class CycleContext
 
     public Workspace Workspace { get; }
 
-    public IReadOnlyDictionary<string, IBatchSystem> BatchSystems { get; }
+    public IReadOnlyDictionary<string, ClusterLink> Links { get; }
+
+    /// <summary>What this cycle read of run folders, by run id (one inspection per cluster).</summary>
+    public Dictionary<string, FolderView> Views { get; } = new(StringComparer.Ordinal);
+
+    /// <summary>Clusters whose run folders were read this cycle.</summary>
+    public HashSet<string> Inspected { get; } = new(StringComparer.Ordinal);
 
     public TimeProvider Time { get; }
 
@@ -61,10 +69,55 @@ internal sealed class CycleContext
 
     public int Held { get; set; }
 
-    public IBatchSystem Batch(string cluster) =>
-        BatchSystems.TryGetValue(cluster, out var batch) ? batch : throw new InvalidOperationException($"no batch system for cluster {cluster}");
+    public IBatchSystem Batch(string cluster) => Link(cluster).Batch;
 
-    public RunFolder Folder(TrackedRun run) => new(Path.Combine(Workspace.Root, run.Folder), Settings);
+    public ClusterLink Link(string cluster) =>
+        Links.TryGetValue(cluster, out var link) ? link : throw new InvalidOperationException($"no batch system for cluster {cluster}");
+
+    /// <summary>The run's folder on its cluster's site.</summary>
+    public string FolderPath(TrackedRun run) => Link(run.Cluster).Site.PathOf(run.Folder);
+
+    /// <summary>The run's folder as read this cycle (empty when it was not read).</summary>
+    public FolderView Folder(TrackedRun run) => Views.TryGetValue(run.RunId, out var view) ? view : FolderView.Empty(FolderPath(run));
+
+    /// <summary>
+    /// Reads, in one call to the site, the folders of the cluster's runs that may need it this cycle (every run with
+    /// an open leg, and every run waiting for its first); sizes for <paramref name="sizesFor"/>. False, with the
+    /// cluster at fault, when the site cannot be read.
+    /// </summary>
+    public async Task<bool> InspectAsync(string cluster, IReadOnlySet<string> sizesFor, CancellationToken cancellationToken)
+    {
+        if (Faults.ContainsKey(cluster))
+        {
+            return false;
+        }
+
+        if (Inspected.Contains(cluster))
+        {
+            return true;
+        }
+
+        var open = TrackingStore.Legs(Db).Where(l => l.IsOpen).Select(l => l.RunId).ToHashSet(StringComparer.Ordinal);
+        var runs = Runs.Values.Where(r => r.Cluster == cluster && (open.Contains(r.RunId) || r.State.IsActive() || r.State is RunState.Planned or RunState.WaitingBudget)).ToList();
+        var site = Link(cluster).Site;
+        var queries = runs.Select(r => new FolderQuery(site.PathOf(r.Folder), sizesFor.Contains(r.RunId))).ToList();
+        IReadOnlyDictionary<string, FolderView>? views = null;
+        if (!await Guarded(cluster, "reading its run folders", async () => views = await site.InspectAsync(queries, Settings, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
+        {
+            return false;
+        }
+
+        Inspected.Add(cluster);
+        foreach (var (run, query) in runs.Zip(queries))
+        {
+            if (views!.TryGetValue(query.Path, out var view))
+            {
+                Views[run.RunId] = view;
+            }
+        }
+
+        return true;
+    }
 
     /// <summary>The legs not yet ended, read now.</summary>
     public IReadOnlyList<JobLeg> OpenLegs() => TrackingStore.Legs(Db).Where(s => s.IsOpen).ToList();

@@ -19,7 +19,7 @@ internal static class EndLegs
             ? profile.ChargedCoreHours(status.ChargedCores ?? run.Cores, e.TotalHours)
             : leg.WorstCase; // no elapsed time known: charge the worst case rather than nothing
         var folder = c.Folder(run);
-        var points = folder.Progress();
+        var points = folder.Progress;
         var latest = points.Count > 0 ? Math.Max(points[^1].Time, run.Progress) : run.Progress;
         var others = TrackingStore.LegsOf(c.Db, run.RunId).Where(s => s.IsOpen && s.Id != leg.Id).ToList();
         var ending = Ending(status, leg);
@@ -93,11 +93,11 @@ internal static class EndLegs
         _ => "vanished",
     };
 
-    private static void LogFinished(CycleContext c, Microsoft.Data.Sqlite.SqliteTransaction tx, TrackedRun run, RunFolder folder)
+    private static void LogFinished(CycleContext c, Microsoft.Data.Sqlite.SqliteTransaction tx, TrackedRun run, Sites.FolderView folder)
     {
         var legs = TrackingStore.LegsOf(c.Db, run.RunId, tx);
         var wallHours = legs.Sum(s => s.Elapsed?.TotalHours ?? 0);
-        var (checkpointGb, outputGb) = folder.Sizes();
+        var (checkpointGb, outputGb) = (folder.CheckpointGb ?? 0, folder.OutputGb ?? 0);
         DateTimeOffset? started = legs.Count == 0 ? null : legs.Min(s => s.SubmittedAt);
         var log = new RunLog(
             run.RunId,

@@ -6,7 +6,7 @@ using Campaign.Store;
 namespace Campaign.Tracking.Cycle;
 
 /// <summary>
-/// Step 2: one query per cluster for all its submitted legs; a leg still alive updates its run (queued or
+/// Step 2: one query per cluster for all its submitted legs, then one reading of its run folders; a leg still alive updates its run (queued or
 /// running, the stall clock starting when it starts); a leg that is over is ended and charged
 /// (<see cref="EndLegs"/>). A state the adapter does not know is waited on, never acted on.
 /// </summary>
@@ -25,6 +25,14 @@ internal static class ObserveJobs
             }
 
             c.Queries[group.Key] = c.Queries.GetValueOrDefault(group.Key) + 1;
+
+            // The run folders, read once for the cluster after its states (sizes for the runs whose leg is over): a
+            // site that cannot be read leaves its runs as they were.
+            var ending = group.Where(s => !statuses![s.JobId!].State.IsActive()).Select(s => s.RunId).ToHashSet(StringComparer.Ordinal);
+            if (!await c.InspectAsync(group.Key, ending, cancellationToken).ConfigureAwait(false))
+            {
+                continue;
+            }
 
             // A run with a pre-queued leg has two open jobs: it is running while either runs, so the waiting one
             // never flips it back to queued (and its health checks keep running).

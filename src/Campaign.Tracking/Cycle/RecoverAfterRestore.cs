@@ -46,7 +46,7 @@ internal static class RecoverAfterRestore
                 var name = names[0];
                 foreach (var candidate in names)
                 {
-                    if (!await c.Guarded(run.Cluster, $"looking up {candidate} after a restore", async () => id = await c.Batch(run.Cluster).FindAsync(candidate, c.Folder(run).Path, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
+                    if (!await c.Guarded(run.Cluster, $"looking up {candidate} after a restore", async () => id = await c.Batch(run.Cluster).FindAsync(candidate, c.FolderPath(run), cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
                     {
                         break;
                     }

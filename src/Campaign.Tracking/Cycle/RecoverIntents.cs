@@ -21,7 +21,7 @@ internal static class RecoverIntents
             }
 
             string? id = null;
-            if (!await c.Guarded(run.Cluster, "looking up an unconfirmed submission", async () => id = await c.Batch(run.Cluster).FindAsync(leg.JobName, c.Folder(run).Path, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
+            if (!await c.Guarded(run.Cluster, "looking up an unconfirmed submission", async () => id = await c.Batch(run.Cluster).FindAsync(leg.JobName, c.FolderPath(run), cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
             {
                 continue;
             }

@@ -4,12 +4,15 @@ using Campaign.Core.Domain;
 using Campaign.Core.Lifecycle;
 using Campaign.Core.Tracking;
 using Campaign.Store;
+using Campaign.Tracking.Sites;
 
 namespace Campaign.Tracking.Cycle;
 
 /// <summary>
 /// Step 5: every run that needs its next leg (or a pre-queued one) gets it, oldest plan position first, if the
-/// budget rule allows its worst case (<see cref="CampaignLedger.Allows"/>); else it waits with the reason. A
+/// budget rule allows its worst case (<see cref="CampaignLedger.Allows"/>); else it waits with the reason. The
+/// folders of a cluster's chosen runs are prepared in one call (on a remote site: the leg script and the run's
+/// files staged, checked by checksum) before its submissions. A
 /// submission records its intent first and its job id after. A refusal of the request holds the run; a failure of
 /// the cluster leaves the run as it was and skips the cluster for the rest of the cycle.
 /// </summary>
@@ -22,6 +25,9 @@ internal static class SubmitLegs
         var lastNumber = legs.GroupBy(s => s.RunId, StringComparer.Ordinal).ToDictionary(g => g.Key, g => g.Max(s => s.Number), StringComparer.Ordinal);
         var ledger = new CampaignLedger(c.Workspace.Config.Allocations, c.Workspace.Clusters, TrackingStore.Charges(c.Db));
         var today = DateOnly.FromDateTime(c.Now.UtcDateTime);
+
+        // 1. Which runs get a leg this cycle, in plan order, each within the budget rule with its worst case.
+        var chosen = new List<Next>();
         foreach (var run in c.Runs.Values.OrderBy(r => r.Position).ToList())
         {
             if (c.Faults.ContainsKey(run.Cluster))
@@ -51,30 +57,66 @@ internal static class SubmitLegs
                 continue;
             }
 
-            var number = lastNumber.GetValueOrDefault(run.RunId) + 1;
-            try
+            ledger.Commit(run.Cluster, worst);
+            chosen.Add(new Next(run, profile, wallHours, worst, lastNumber.GetValueOrDefault(run.RunId) + 1, prequeue ? open[0].JobId : null));
+        }
+
+        // 2. Per cluster: its run folders read (for the restart checkpoints) and prepared in one call each, then
+        //    one submission per leg. A cluster that fails is skipped for the rest of the cycle; its runs stay as they were.
+        var script = Path.GetFullPath(c.Settings.Script, c.Workspace.Root);
+        foreach (var group in chosen.GroupBy(n => n.Run.Cluster, StringComparer.Ordinal))
+        {
+            var cluster = group.Key;
+            if (!await c.InspectAsync(cluster, new HashSet<string>(), cancellationToken).ConfigureAwait(false))
             {
-                if (await Submit(c, run, profile, wallHours, worst, number, prequeue ? open[0].JobId : null, cancellationToken).ConfigureAwait(false))
-                {
-                    ledger.Commit(run.Cluster, worst);
-                }
+                continue;
             }
-            catch (Exception e) when (e is Microsoft.Data.Sqlite.SqliteException { SqliteErrorCode: 19 } or DirectoryNotFoundException or UnauthorizedAccessException)
+
+            var site = c.Link(cluster).Site;
+            var folders = group.Select(n => new FolderToPrepare(n.Run.RunId, Path.Combine(c.Workspace.Root, n.Run.Folder), site.PathOf(n.Run.Folder))).ToList();
+            PreparedFolders? prepared = null;
+            if (!await c.Guarded(cluster, "preparing its run folders", async () => prepared = await site.PrepareAsync(folders, script, cancellationToken).ConfigureAwait(false)).ConfigureAwait(false))
             {
-                // One run's trouble (a constraint its leg breaks, a run folder that cannot be written) never
-                // stops the cycle for the others; it is reported and tried again next cycle.
-                c.Messages.Add($"{run.RunId}: leg {number} not submitted this cycle: {e.Message}");
+                continue;
+            }
+
+            foreach (var next in group)
+            {
+                if (c.Faults.ContainsKey(cluster))
+                {
+                    break;
+                }
+
+                if (!prepared!.Scripts.TryGetValue(next.Run.RunId, out var legScript))
+                {
+                    c.Messages.Add($"{next.Run.RunId}: leg {next.Number} not submitted this cycle: its run folder could not be prepared: {prepared.Problems.GetValueOrDefault(next.Run.RunId, "no reason given")}");
+                    continue;
+                }
+
+                try
+                {
+                    await Submit(c, next, legScript, cancellationToken).ConfigureAwait(false);
+                }
+                catch (Microsoft.Data.Sqlite.SqliteException e) when (e.SqliteErrorCode == 19)
+                {
+                    // One run's trouble (a constraint its leg breaks) never stops the cycle for the others; it is
+                    // reported and tried again next cycle.
+                    c.Messages.Add($"{next.Run.RunId}: leg {next.Number} not submitted this cycle: {e.Message}");
+                }
             }
         }
     }
 
+    /// <summary>A leg chosen for submission this cycle.</summary>
+    private sealed record Next(TrackedRun Run, ClusterProfile Profile, double WallHours, double Worst, int Number, string? AfterAny);
+
     /// <summary>Submits one leg (intent first, job id after); returns true when its worst case is now committed.</summary>
-    private static async Task<bool> Submit(CycleContext c, TrackedRun run, ClusterProfile profile, double wallHours, double worst, int number, string? afterAny, CancellationToken cancellationToken)
+    private static async Task<bool> Submit(CycleContext c, Next next, string script, CancellationToken cancellationToken)
     {
+        var (run, wallHours, worst, number, afterAny) = (next.Run, next.WallHours, next.Worst, next.Number, next.AfterAny);
         var folder = c.Folder(run);
-        var (checkpoint, skipped) = Checkpoints.NewestValid(folder.CheckpointFiles(), c.Settings.CheckpointMarker.Length > 0, TimeSpan.FromSeconds(c.Settings.CheckpointSettleSeconds), c.Now);
+        var (checkpoint, skipped) = Checkpoints.NewestValid(folder.Checkpoints, c.Settings.CheckpointMarker.Length > 0, TimeSpan.FromSeconds(c.Settings.CheckpointSettleSeconds), c.Now);
         var name = JobName.For(c.Workspace.Id, run.RunId, number);
-        Directory.CreateDirectory(Path.Combine(folder.Path, "logs"));
         var environment = new Dictionary<string, string>(c.JobEnvironment)
         {
             ["CAMPAIGN_RUN_ID"] = run.RunId,
@@ -95,8 +137,8 @@ internal static class SubmitLegs
         var warning = settings.WarningSignal.Length > 0 && settings.WarningSeconds > 0 && settings.WarningSeconds < wallHours * 3600
             ? new WarningSignal(settings.WarningSignal, settings.WarningSeconds)
             : null;
-        var logBase = Path.Combine(folder.Path, "logs", "leg-" + number.ToString("D3", CultureInfo.InvariantCulture));
-        var request = new JobRequest(name, Path.GetFullPath(settings.Script, c.Workspace.Root), folder.Path, run.Cores, TimeSpan.FromHours(wallHours),
+        var logBase = folder.Path + "/logs/leg-" + number.ToString("D3", CultureInfo.InvariantCulture);
+        var request = new JobRequest(name, script, folder.Path, run.Cores, TimeSpan.FromHours(wallHours),
             logBase + ".out", logBase + ".err", environment, afterAny, warning);
         var leg = new JobLeg(run.RunId, number, name, worst, TimeSpan.FromHours(wallHours), run.Progress, afterAny is not null ? "newest at start" : checkpoint?.Path, c.Now);
 

@@ -6,7 +6,7 @@ using Campaign.Core.Tracking;
 namespace Campaign.Tracking.Cycle;
 
 /// <summary>
-/// Step 4: the progress of every running run is read from its folder; a constraint norm that grows steadily holds
+/// Step 4: the progress of every running run, as this cycle read it from its folder (<see cref="CycleContext.InspectAsync"/>); a constraint norm that grows steadily holds
 /// the run; no progress for stall_minutes cancels the leg to restart once, and a second stall holds the run.
 /// </summary>
 internal static class WatchHealth
@@ -17,7 +17,7 @@ internal static class WatchHealth
             .Where(s => s.Phase == LegPhase.Submitted && s.JobState == JobState.Working.Name())
             .GroupBy(s => s.RunId, StringComparer.Ordinal)
             .ToDictionary(g => g.Key, g => g.First(), StringComparer.Ordinal);
-        foreach (var run in c.Runs.Values.Where(r => r.State == RunState.Running && !c.Faults.ContainsKey(r.Cluster)).ToList())
+        foreach (var run in c.Runs.Values.Where(r => r.State == RunState.Running && !c.Faults.ContainsKey(r.Cluster) && c.Inspected.Contains(r.Cluster)).ToList())
         {
             if (running.GetValueOrDefault(run.RunId) is not { CancelReason: null } leg)
             {
@@ -30,7 +30,7 @@ internal static class WatchHealth
 
     private static async Task Watch(CycleContext c, TrackedRun run, JobLeg leg, CancellationToken cancellationToken)
     {
-        var points = c.Folder(run).Progress();
+        var points = c.Folder(run).Progress;
         var now = c.Now;
         if (points.Count > 0 && points[^1].Time > run.Progress)
         {
