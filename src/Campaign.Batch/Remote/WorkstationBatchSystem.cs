@@ -75,7 +75,19 @@ public sealed class WorkstationBatchSystem : IBatchSystem
             return found;
         }
 
-        var result = await Run("query", jobIds.ToList(), "", cancellationToken).ConfigureAwait(false);
+        // The runner's ids are numbers; anything else is no job of its own (and is never sent).
+        foreach (var id in jobIds.Where(id => id.Length == 0 || !id.All(char.IsAsciiDigit)))
+        {
+            found[id] = JobStatus.MissingFor(id);
+        }
+
+        var asked = jobIds.Where(id => !found.ContainsKey(id)).ToList();
+        if (asked.Count == 0)
+        {
+            return found;
+        }
+
+        var result = await Run("query", asked, "", cancellationToken).ConfigureAwait(false);
         foreach (var line in result.StandardOutput.Split('\n', StringSplitOptions.RemoveEmptyEntries).Where(l => l.StartsWith("J ", StringComparison.Ordinal)))
         {
             var status = Status(line);
