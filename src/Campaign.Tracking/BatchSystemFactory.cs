@@ -92,6 +92,12 @@ public static class BatchSystemFactory
         }
 
         var connect = TimeSpan.FromSeconds(Math.Clamp(retry.CommandTimeout.TotalSeconds / 4, 5, 30));
-        return new SshSettings(remote.Host, remote.SshConfig, control, remote.RequiresMaster, connect);
+        var config = remote.SshConfig switch
+        {
+            null => null,
+            var c when c.StartsWith("~/", StringComparison.Ordinal) => Path.Combine(Environment.GetFolderPath(Environment.SpecialFolder.UserProfile), c[2..]),
+            var c => Path.GetFullPath(c, Path.Combine(Path.GetFullPath(root), Workspace.ClustersFolderName)), // relative to the profiles
+        };
+        return new SshSettings(remote.Host, config, control, remote.RequiresMaster, connect);
     }
 }

@@ -130,9 +130,8 @@ public static partial class ClusterProfileReader
 
         if (config is not null)
         {
-            config = config.StartsWith("~/", StringComparison.Ordinal)
-                ? Path.Combine(Environment.GetFolderPath(Environment.SpecialFolder.UserProfile), config[2..])
-                : Path.GetFullPath(config, Path.GetDirectoryName(Path.GetFullPath(source)) ?? ".");
+            // The reader is pure: "~/" and a relative path are resolved where the profile is used.
+            config = config.Trim();
         }
 
         return new RemoteAccess(host, root.Length > 1 ? root.TrimEnd('/') : root, config, master ?? false, site ?? host);

@@ -84,7 +84,7 @@ public class ClusterProfileReaderTests
         Assert.Equal(
             new[]
             {
-                "p.toml:2:19: unknown field 'wall_limit_hour': expected one of name, description, batch_system, cores_per_node, memory_per_node_gb, wall_limit_hours, charge_whole_nodes, charge_factor, relative_speed, max_jobs_queued, max_jobs_running, queue_wait_median_hours, queue_wait_p90_hours, partition, account",
+                "p.toml:2:19: unknown field 'wall_limit_hour': expected one of name, description, batch_system, cores_per_node, memory_per_node_gb, wall_limit_hours, charge_whole_nodes, charge_factor, relative_speed, max_jobs_queued, max_jobs_running, queue_wait_median_hours, queue_wait_p90_hours, partition, account, site, login_host, run_root, ssh_config, requires_master",
                 "p.toml:1:1: batch_system is missing: expected one of \"local\", \"slurm\", \"pbs\"",
                 "p.toml:1:1: cores_per_node is missing: expected an integer from 1 to 100000",
                 "p.toml:1:1: memory_per_node_gb is missing: expected a number greater than 0 and at most 1000000 GB",
@@ -98,5 +98,25 @@ public class ClusterProfileReaderTests
     public void Malformed_toml_is_reported_with_its_location()
     {
         Assert.Equal(new[] { "p.toml:1:8: the string is not closed on its line: expected '\"'" }, Problems("name = \"x\n"));
+    }
+
+    [Fact]
+    public void A_remote_profile_has_its_login_host_run_root_and_site_and_a_local_one_has_none()
+    {
+        var remote = ClusterProfileReader.Read(Valid + "\nsite = \"Northfell Centre\"\nlogin_host = \"nf-login\"\nrun_root = \"/scratch/grp/runs-root/\"\nrequires_master = true\n", "p.toml");
+        Assert.Equal(new RemoteAccess("nf-login", "/scratch/grp/runs-root", null, true, "Northfell Centre"), remote.Remote);
+        Assert.Equal("Northfell Centre", remote.Site);
+        Assert.Null(ClusterProfileReader.Read(Valid, "p.toml").Remote);
+        Assert.Equal("this host", ClusterProfileReader.Read(Valid, "p.toml").Site);
+    }
+
+    [Theory]
+    [InlineData("login_host = \"-oProxyCommand=x\"\nrun_root = \"/r\"\n", "login_host = \"-oProxyCommand=x\": expected a Host name")]
+    [InlineData("login_host = \"h\"\nrun_root = \"relative/runs\"\n", "run_root = \"relative/runs\": expected an absolute folder")]
+    [InlineData("login_host = \"h\"\n", "run_root is missing: expected an absolute folder")]
+    [InlineData("run_root = \"/r\"\n", "run_root = \"/r\": expected only with login_host")]
+    public void A_bad_remote_field_is_named_with_what_was_expected(string lines, string message)
+    {
+        Assert.Contains(Problems(Valid + "\n" + lines), p => p.Contains(message, StringComparison.Ordinal));
     }
 }
