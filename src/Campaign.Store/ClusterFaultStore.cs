@@ -57,5 +57,19 @@ public static class ClusterFaultStore
     public static DateTimeOffset? LastCycle(SqliteConnection connection) =>
         connection.ExecuteScalar<string?>("SELECT value FROM workspace_info WHERE key = @key", new { key = LastCycleKey }) is { } text ? Parse(text) : null;
 
+    /// <summary>Notes that <paramref name="cluster"/> answered in the cycle at <paramref name="at"/> (its last contact).</summary>
+    public static void NoteReached(SqliteConnection connection, SqliteTransaction transaction, string cluster, DateTimeOffset at) =>
+        connection.Execute(
+            "INSERT INTO workspace_info (key, value) VALUES (@key, @value) ON CONFLICT (key) DO UPDATE SET value = excluded.value",
+            new { key = ReachedKey + cluster, value = at.ToString("O", CultureInfo.InvariantCulture) },
+            transaction);
+
+    /// <summary>When each cluster last answered a cycle, by cluster name.</summary>
+    public static IReadOnlyDictionary<string, DateTimeOffset> Reached(SqliteConnection connection) =>
+        connection.Query<(string Key, string Value)>("SELECT key, value FROM workspace_info WHERE key LIKE 'reached_at:%'")
+            .ToDictionary(r => r.Key[ReachedKey.Length..], r => Parse(r.Value), StringComparer.Ordinal);
+
+    private const string ReachedKey = "reached_at:";
+
     private static DateTimeOffset Parse(string text) => DateTimeOffset.Parse(text, CultureInfo.InvariantCulture);
 }

@@ -41,7 +41,11 @@ public sealed record PlanSummary(long PlanId, int ToCome, int Active, int Held, 
 /// <param name="LastCycle">When the last reconcile cycle ran (what the states are as of), or null.</param>
 /// <param name="Events">Recent run events, newest last.</param>
 /// <param name="BatchSystems">Each cluster's batch system ("slurm", "pbs", "local"): whose words a native state is.</param>
-public sealed record StatusResult(IReadOnlyList<RunView> Runs, PlanSummary? Plan, IReadOnlyList<ClusterFault> ClusterFaults, DateTimeOffset? LastCycle, IReadOnlyList<RunEvent> Events, IReadOnlyDictionary<string, string> BatchSystems);
+/// <param name="Sites">Every cluster with its site, login host (remote clusters), when it last answered and its current error.</param>
+public sealed record StatusResult(IReadOnlyList<RunView> Runs, PlanSummary? Plan, IReadOnlyList<ClusterFault> ClusterFaults, DateTimeOffset? LastCycle, IReadOnlyList<RunEvent> Events, IReadOnlyDictionary<string, string> BatchSystems, IReadOnlyList<SiteView> Sites);
+
+/// <summary>Where a cluster is and how the tracker last fared reaching it.</summary>
+public sealed record SiteView(string Cluster, string Site, string? LoginHost, DateTimeOffset? LastReached, string? LastError);
 
 /// <summary>The campaign's status: runs, plan standing, clusters at fault, and how fresh it is.</summary>
 public sealed class StatusService
@@ -77,6 +81,11 @@ public sealed class StatusService
 
         var recent = events > 0 ? TrackingStore.Events(workspace.Connection).TakeLast(events).ToList() : new List<RunEvent>();
         var batchSystems = workspace.Clusters.ToDictionary(c => c.Key, c => c.Value.BatchSystem.ToString().ToLowerInvariant(), StringComparer.Ordinal);
-        return new StatusResult(views, plan, ClusterFaultStore.All(workspace.Connection), ClusterFaultStore.LastCycle(workspace.Connection), recent, batchSystems);
+        var faults = ClusterFaultStore.All(workspace.Connection);
+        var reached = ClusterFaultStore.Reached(workspace.Connection);
+        var sites = workspace.Clusters.Values.OrderBy(c => c.Name, StringComparer.Ordinal)
+            .Select(c => new SiteView(c.Name, c.Site, c.Remote?.Host, reached.TryGetValue(c.Name, out var at) ? at : null, faults.FirstOrDefault(f => f.Cluster == c.Name)?.Message))
+            .ToList();
+        return new StatusResult(views, plan, faults, ClusterFaultStore.LastCycle(workspace.Connection), recent, batchSystems, sites);
     }
 }

@@ -192,6 +192,7 @@ internal static class TrackingCommands
                 LastCycle = status.LastCycle?.ToString("O", CultureInfo.InvariantCulture),
                 Plan = status.Plan,
                 ClusterFaults = status.ClusterFaults.Select(f => new { f.Cluster, Since = f.Since.ToString("O", CultureInfo.InvariantCulture), LastAt = f.LastAt.ToString("O", CultureInfo.InvariantCulture), f.Message }),
+                Sites = status.Sites.Select(s => new { s.Cluster, s.Site, s.LoginHost, LastReached = s.LastReached?.ToString("O", CultureInfo.InvariantCulture), s.LastError }),
                 Runs = status.Runs.Select(v => new
                 {
                     Id = v.Run.RunId,
@@ -220,6 +221,19 @@ internal static class TrackingCommands
         foreach (var f in status.ClusterFaults)
         {
             o.WriteLine($"Cluster {f.Cluster} unreachable since {f.Since.ToString("yyyy-MM-dd HH:mm", CultureInfo.InvariantCulture)} UTC (last tried {Ago(now - f.LastAt)} ago): {f.Message}. Its runs are left as they were.");
+        }
+
+        if (status.Sites.Any(s => s.LoginHost is not null))
+        {
+            // A campaign across sites: where each cluster is, when it last answered, what failed last.
+            var sites = new TextTable("cluster", "site", "login host", "last reached", "last error").Wrap("last error");
+            foreach (var s in status.Sites)
+            {
+                sites.Add(s.Cluster, s.Site, s.LoginHost ?? "-", s.LastReached is { } r ? $"{Ago(now - r)} ago" : "never", s.LastError is { } e ? Campaign.Batch.BatchErrorText.FirstLine(e) : "-");
+            }
+
+            sites.WriteTo(o);
+            o.WriteLine();
         }
 
         if (status.Plan is { } p)

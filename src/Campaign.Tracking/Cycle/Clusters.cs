@@ -24,6 +24,7 @@ internal static class Clusters
 
             foreach (var cluster in c.Answered.Where(m => !c.Faults.ContainsKey(m)))
             {
+                ClusterFaultStore.NoteReached(c.Db, tx, cluster, now);
                 if (ClusterFaultStore.Clear(c.Db, tx, cluster) is { } cleared)
                 {
                     EventLog.Append(c.Db, tx, c.Time, "cluster.reachable", cluster, $"answered again (unreachable since {cleared.Since.ToString("O", CultureInfo.InvariantCulture)})");
