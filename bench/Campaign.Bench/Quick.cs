@@ -207,6 +207,12 @@ public static class Quick
             Exponent("steady cycle", ticks);
         }
 
+        if (Wanted("ssh-tick"))
+        {
+            Console.WriteLine("== Reconcile cycle over SSH (run folders on two sites through real ssh, batch calls counted)");
+            SshTickBench.Run(2_000);
+        }
+
         if (Wanted("forecast"))
         {
             Console.WriteLine("== Forecast");

@@ -13,7 +13,7 @@ namespace Campaign.Bench;
 public static class TickBench
 {
     /// <summary>An in-memory batch system: jobs run until told to end; counts its calls.</summary>
-    private sealed class InMemoryBatch : IBatchSystem
+    internal sealed class InMemoryBatch : IBatchSystem
     {
         private readonly Dictionary<string, (string Name, JobState State)> _jobs = new(StringComparer.Ordinal);
         private long _next;
